@@ -1,0 +1,38 @@
+"""The `Findings` structure: every table the report shows, computed once by `analyse`.
+
+Rendering consumes it unchanged. Shares are in [0, 1]; `*_low`/`*_high` are the
+interval bounds at `meta["confidence"]`; `is_too_small` marks groups under
+`meta["min_group_size"]` publications (shown as too small, never dropped).
+Columns may be added; the ones listed are a contract with `render`.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import pandas as pd
+
+
+@dataclass(frozen=True)
+class Findings:
+    meta: dict  # counting, confidence, min_group_size, fdr, threshold, thresholds (goal->t), policy,
+    #             reporting_year, comparison_years, years, sensitivity_step, seed, bootstrap_resamples
+    headline: dict  # n_publications, n_aligned_any, share_aligned_any, share_aligned_any_low/_high,
+    #                 n_explicit_any, n_general_mentions, n_too_small_groups
+    goals: pd.DataFrame  # goal, title, n, n_aligned, n_explicit, n_content_only, share, share_low,
+    #                      share_high, mean_score, mean_score_low, mean_score_high  (reporting year scope:
+    #                      all years in scope; see meta["scope"])
+    by_year: pd.DataFrame  # year, goal, n, n_aligned, share, share_low, share_high, is_too_small
+    changes: pd.DataFrame  # goal, baseline ("2024" or "mean 2022-2024"), year, share_baseline, share,
+    #                        diff, diff_low, diff_high, p_value, p_adjusted, is_change, verdict
+    #                        (verdict: "increase" | "decrease" | "no clear change" | "too small")
+    by_department: pd.DataFrame  # department, goal, n, n_aligned, share, share_low, share_high, is_too_small
+    by_country: pd.DataFrame  # country (ISO alpha-2), country_name, goal, n, n_aligned, share, share_low,
+    #                           share_high, is_too_small   (partner countries only)
+    collaboration: pd.DataFrame  # group ("international" | "domestic"), goal, n, n_aligned, share,
+    #                              share_low, share_high, is_too_small
+    sensitivity: pd.DataFrame  # goal, threshold_label ("low" | "chosen" | "high"), threshold, n_aligned, share
+    cooccurrence: pd.DataFrame  # goal_a, goal_b, n  (publications aligned with both; goal_a < goal_b)
+    coverage: dict  # n_records, n_with_abstract, share_with_abstract, n_with_department,
+    #                 share_with_department, n_with_country, share_with_country, n_non_english
+    extra: dict = field(default_factory=dict)  # later sections (validation, corrected shares, overrides)

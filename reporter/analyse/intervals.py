@@ -1,0 +1,143 @@
+"""Intervals and tests: Wilson shares, Newcombe differences, a two-proportion p-value,
+Benjamini-Hochberg adjustment and percentile bootstrap intervals for means.
+
+Wilson and Newcombe are short closed forms written out here so they work on arrays,
+on weighted (non-integer) counts and on empty groups (nan, no warnings); the
+reference tests check them against statsmodels. BH is scipy's; bootstrap draws the
+same resamples as scipy.stats.bootstrap for the same Generator state.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from scipy.stats import false_discovery_control, norm
+from statsmodels.stats.proportion import test_proportions_2indep
+
+# Resample indices drawn at once are capped (about 32 MB of int64) so a large corpus
+# does not need an n_resamples x n index matrix in memory.
+_MAX_BATCH_CELLS = 2**22
+
+
+def _z(confidence: float) -> float:
+    if not 0 < confidence < 1:
+        raise ValueError(f"confidence must lie strictly between 0 and 1, got {confidence}")
+    return float(norm.ppf(0.5 + confidence / 2))
+
+
+def _scalar_or_array(value: np.ndarray, scalar: bool) -> float | np.ndarray:
+    return float(value) if scalar else value
+
+
+def wilson_interval(successes, n, confidence: float = 0.95):
+    """Wilson (1927) score interval for a binomial proportion; returns (low, high).
+
+    Accepts scalars or arrays; counts may be non-integer (weighted groups). n = 0 gives nan bounds.
+    """
+    scalar = np.ndim(successes) == 0 and np.ndim(n) == 0
+    x = np.asarray(successes, dtype=float)
+    m = np.asarray(n, dtype=float)
+    z = _z(confidence)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        p = x / m
+        denom = 1 + z**2 / m
+        centre = (p + z**2 / (2 * m)) / denom
+        half = z * np.sqrt(np.clip(p * (1 - p), 0, None) / m + z**2 / (4 * m**2)) / denom
+    # At x = 0 (x = n) the lower (upper) bound is exactly 0 (1); rounding would leave 1e-17.
+    low = np.where(x <= 0, 0.0, np.clip(centre - half, 0.0, 1.0))
+    high = np.where(x >= m, 1.0, np.clip(centre + half, 0.0, 1.0))
+    empty = ~(m > 0)
+    low, high = np.where(empty, np.nan, low), np.where(empty, np.nan, high)
+    return _scalar_or_array(low, scalar), _scalar_or_array(high, scalar)
+
+
+def newcombe_difference(x1, n1, x2, n2, confidence: float = 0.95):
+    """Difference p1 - p2 with Newcombe's (1998, method 10) hybrid score interval.
+
+    Returns (diff, low, high); nan when either group is empty.
+    """
+    scalar = all(np.ndim(v) == 0 for v in (x1, n1, x2, n2))
+    a1, m1, a2, m2 = (np.asarray(v, dtype=float) for v in (x1, n1, x2, n2))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        p1, p2 = a1 / m1, a2 / m2
+    l1, u1 = wilson_interval(a1, m1, confidence)
+    l2, u2 = wilson_interval(a2, m2, confidence)
+    diff = p1 - p2
+    # Clipped because rounding can push a bound a hair past +/-1 when a share is 0 or 1.
+    low = np.clip(diff - np.sqrt((p1 - l1) ** 2 + (u2 - p2) ** 2), -1.0, 1.0)
+    high = np.clip(diff + np.sqrt((u1 - p1) ** 2 + (p2 - l2) ** 2), -1.0, 1.0)
+    empty = ~((m1 > 0) & (m2 > 0))
+    diff, low, high = (np.where(empty, np.nan, v) for v in (diff, low, high))
+    return tuple(_scalar_or_array(v, scalar) for v in (diff, low, high))
+
+
+def difference_p_value(x1: float, n1: float, x2: float, n2: float) -> float:
+    """Two-sided p-value for p1 = p2: the score test (pooled two-proportion z-test).
+
+    statsmodels test_proportions_2indep(method="score", correction=False), which under
+    H0 diff = 0 equals Pearson's chi-squared test on the 2x2 table without continuity
+    correction. Identical all-zero or all-one groups give p = 1 (no difference to test);
+    an empty group gives nan.
+    """
+    if not (n1 > 0 and n2 > 0):
+        return math.nan
+    pooled = (x1 + x2) / (n1 + n2)
+    if pooled in (0.0, 1.0):
+        return 1.0
+    result = test_proportions_2indep(
+        x1, n1, x2, n2, value=0, method="score", compare="diff", alternative="two-sided", correction=False
+    )
+    return float(result.pvalue)
+
+
+def bh_adjust(pvalues) -> np.ndarray:
+    """Benjamini-Hochberg (1995) adjusted p-values (scipy false_discovery_control, method "bh").
+
+    nan entries (tests not run) stay nan and do not count towards the number of tests.
+    """
+    p = np.asarray(pvalues, dtype=float)
+    adjusted = np.full(p.shape, np.nan)
+    present = ~np.isnan(p)
+    if present.any():
+        adjusted[present] = false_discovery_control(p[present], method="bh")
+    return adjusted
+
+
+def bootstrap_mean_interval(
+    values,
+    rng: np.random.Generator,
+    n_resamples: int,
+    confidence: float = 0.95,
+    batch: int | None = None,
+) -> tuple[float, float]:
+    """Percentile bootstrap interval for the mean; returns (low, high).
+
+    Percentile, not BCa: BCa's jackknife needs an n x n array per call, too heavy for a
+    whole corpus, and the shares (the headline figures) do not use the bootstrap.
+    Resamples are drawn as `rng.integers(0, n, (batch, n))` in batches of `batch` rows,
+    exactly as scipy.stats.bootstrap(method="percentile", batch=batch) draws them, so both
+    give the same interval for the same data and Generator state. `batch=None` picks a
+    batch that bounds memory (all resamples at once for small n, like scipy's default).
+    Empty input gives nan bounds.
+    """
+    data = np.asarray(values, dtype=float)
+    if data.ndim != 1:
+        raise ValueError(f"values must be one-dimensional, got shape {data.shape}")
+    if np.isnan(data).any():
+        raise ValueError("values contain nan; drop missing scores before bootstrapping")
+    n = data.size
+    if n == 0:
+        return math.nan, math.nan
+    if batch is None:
+        batch = max(1, min(n_resamples, _MAX_BATCH_CELLS // n))
+    means = np.empty(n_resamples)
+    done = 0
+    while done < n_resamples:
+        rows = min(batch, n_resamples - done)
+        index = rng.integers(0, n, (rows, n))
+        means[done : done + rows] = data[index].mean(axis=-1)
+        done += rows
+    alpha = (1 - confidence) / 2
+    low, high = np.quantile(means, [alpha, 1 - alpha])
+    return float(low), float(high)

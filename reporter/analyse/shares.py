@@ -1,0 +1,130 @@
+"""Goal shares per group with Wilson intervals; the goal summary with bootstrap mean scores.
+
+In: a membership table (record_id, group, weight; see counting.py) and the decision table
+(decisions.py). Out: one row per (group, goal) in the given group and framework order.
+With fractional counting n and n_aligned are weighted sums; the Wilson interval uses
+Kish's effective n, (sum w)^2 / sum w^2, since the publications, not the fractions, are
+the sampled units (with equal weights it is the plain publication count).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pycountry
+
+from reporter.analyse.counting import UNASSIGNED, group_memberships, ordered_groups, single_memberships
+from reporter.analyse.intervals import bootstrap_mean_interval, wilson_interval
+from reporter.analyse.suppress import mark_too_small
+
+SHARE_COLUMNS = (
+    "group", "goal", "n", "n_publications", "n_effective", "n_aligned", "n_explicit", "n_content_only",
+    "share", "share_low", "share_high",
+)
+_COUNT_COLUMNS = ("n", "n_effective", "n_aligned", "n_explicit", "n_content_only")
+COLLABORATION_GROUPS = ("international", "domestic")
+
+
+def group_shares(
+    memberships: pd.DataFrame,
+    decisions: pd.DataFrame,
+    goal_codes: tuple[str, ...],
+    groups: list,
+    confidence: float,
+) -> pd.DataFrame:
+    """Weighted counts and shares for every (group, goal); groups without publications get n = 0."""
+    weights = memberships.assign(weight_sq=memberships["weight"] ** 2)
+    sizes = weights.groupby("group").agg(
+        n=("weight", "sum"), n_publications=("record_id", "nunique"), weight_sq=("weight_sq", "sum")
+    )
+    hits = memberships.merge(decisions[["record_id", "goal", "is_aligned", "is_explicit"]], on="record_id")
+    hits = hits.assign(
+        n_aligned=hits["weight"] * hits["is_aligned"],
+        n_explicit=hits["weight"] * hits["is_explicit"],
+        n_content_only=hits["weight"] * (hits["is_aligned"] & ~hits["is_explicit"]),
+    )
+    counts = hits.groupby(["group", "goal"])[["n_aligned", "n_explicit", "n_content_only"]].sum()
+    index = pd.MultiIndex.from_product([groups, list(goal_codes)], names=["group", "goal"])
+    table = counts.reindex(index, fill_value=0.0).reset_index()
+    table = table.merge(sizes, left_on="group", right_index=True, how="left")
+    table[["n", "n_publications", "weight_sq"]] = table[["n", "n_publications", "weight_sq"]].fillna(0)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        table["n_effective"] = np.where(table["weight_sq"] > 0, table["n"] ** 2 / table["weight_sq"], 0.0)
+        table["share"] = np.where(table["n"] > 0, table["n_aligned"] / table["n"], np.nan)
+    low, high = wilson_interval(table["share"].fillna(0) * table["n_effective"], table["n_effective"], confidence)
+    table["share_low"], table["share_high"] = low, high
+    table["n_publications"] = table["n_publications"].astype(int)
+    if (memberships["weight"] == 1).all():
+        # Full counting: every count is a whole number of publications.
+        table = table.astype({c: int for c in _COUNT_COLUMNS})
+    return table.loc[:, list(SHARE_COLUMNS)]
+
+
+def goal_summary(
+    decisions: pd.DataFrame,
+    goals: tuple[tuple[str, str], ...],
+    confidence: float,
+    rng: np.random.Generator,
+    n_resamples: int,
+) -> pd.DataFrame:
+    """Per goal over every analysed publication: counts, share (Wilson), mean score (bootstrap)."""
+    codes = tuple(code for code, _ in goals)
+    ids = decisions["record_id"].drop_duplicates()
+    everyone = pd.DataFrame({"record_id": ids, "group": "all", "weight": 1.0})
+    table = group_shares(everyone, decisions, codes, ["all"], confidence).drop(columns=["group"])
+    table.insert(1, "title", [title for _, title in goals])
+    means, lows, highs = [], [], []
+    for code in codes:
+        # Goals are visited in framework order, so the shared Generator gives the same draws every run.
+        scores = decisions.loc[decisions["goal"] == code, "alignment_score"].dropna().to_numpy()
+        means.append(float(scores.mean()) if scores.size else np.nan)
+        low, high = bootstrap_mean_interval(scores, rng, n_resamples, confidence)
+        lows.append(low)
+        highs.append(high)
+    return table.assign(mean_score=means, mean_score_low=lows, mean_score_high=highs)
+
+
+def year_shares(records, decisions, goal_codes, years, confidence, min_group_size) -> pd.DataFrame:
+    """Shares by publication year; every year in scope appears, empty or not."""
+    table = group_shares(single_memberships(records, "year"), decisions, goal_codes, list(years), confidence)
+    return mark_too_small(table.rename(columns={"group": "year"}), min_group_size)
+
+
+def department_shares(records, decisions, goal_codes, counting, confidence, min_group_size) -> pd.DataFrame:
+    """Shares by department under full or fractional counting; no department -> "unassigned"."""
+    members = group_memberships(records, "departments", counting)
+    table = group_shares(members, decisions, goal_codes, ordered_groups(members["group"]), confidence)
+    table = table.rename(columns={"group": "department"})
+    table.insert(1, "is_unassigned", table["department"] == UNASSIGNED)
+    return mark_too_small(table, min_group_size)
+
+
+def country_shares(records, decisions, goal_codes, counting, confidence, min_group_size) -> pd.DataFrame:
+    """Shares by partner country (ISO 3166-1 alpha-2); no partner country -> "unassigned"."""
+    members = group_memberships(records, "partner_countries", counting)
+    table = group_shares(members, decisions, goal_codes, ordered_groups(members["group"]), confidence)
+    table = table.rename(columns={"group": "country"})
+    table.insert(1, "country_name", table["country"].map(country_name))
+    table.insert(2, "is_unassigned", table["country"] == UNASSIGNED)
+    return mark_too_small(table, min_group_size)
+
+
+def collaboration_shares(records, decisions, goal_codes, confidence, min_group_size) -> pd.DataFrame:
+    """International (at least one partner country) vs domestic (none found) publications."""
+    labelled = records.assign(
+        _group=np.where(records["is_international"].astype(bool), *COLLABORATION_GROUPS)
+    )
+    table = group_shares(
+        single_memberships(labelled, "_group"), decisions, goal_codes, list(COLLABORATION_GROUPS), confidence
+    )
+    return mark_too_small(table, min_group_size)
+
+
+def country_name(code: str) -> str:
+    """Common English name from ISO 3166-1 via pycountry; the code itself when unknown."""
+    if code == UNASSIGNED:
+        return "no partner country"
+    country = pycountry.countries.get(alpha_2=str(code).upper())
+    if country is None:
+        return str(code)
+    return getattr(country, "common_name", None) or country.name

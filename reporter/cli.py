@@ -1,0 +1,55 @@
+"""The `waymark` command line. Thin: load config, run the pipeline, print a summary.
+
+Results go to stdout, progress and logs to stderr. Exit 0 done, 1 a problem the
+user can fix (printed as Problem lines), 2 usage. Anything else is a bug and
+keeps its traceback.
+"""
+
+from __future__ import annotations
+
+import logging
+import sys
+from pathlib import Path
+
+import click
+
+from reporter import __version__
+from reporter.errors import ReporterError
+
+
+def _fail(error: ReporterError) -> None:
+    raise click.ClickException(str(error))
+
+
+def _setup_logging(verbose: int, quiet: bool) -> None:
+    level = logging.WARNING if quiet else (logging.DEBUG if verbose > 1 else logging.INFO)
+    logging.basicConfig(level=level, format="%(levelname)s %(message)s", stream=sys.stderr)
+
+
+@click.group()
+@click.version_option(__version__, prog_name="waymark")
+def main() -> None:
+    """Waymark: goal-alignment reports from a publication list."""
+
+
+@main.command()
+@click.argument("config_path", metavar="CONFIG", type=click.Path(path_type=Path))
+@click.option("--out", "out_dir", type=click.Path(path_type=Path), default=None, help="Output folder (overrides report.output).")
+@click.option("-v", "--verbose", count=True, help="More detail on stderr.")
+@click.option("-q", "--quiet", is_flag=True, help="No progress bars; warnings only.")
+def intake(config_path: Path, out_dir: Path | None, verbose: int, quiet: bool) -> None:
+    """Check the config and inputs, print the intake summary, write intake-log.csv (no model)."""
+    from reporter.config import load_config
+    from reporter.pipeline import run_intake, write_intake
+    from reporter.summary import format_intake_summary
+
+    _setup_logging(verbose, quiet)
+    try:
+        config = load_config(config_path, output=out_dir)
+        result = run_intake(config)
+        written = write_intake(config, result)
+    except ReporterError as error:
+        _fail(error)
+    click.echo(format_intake_summary(result))
+    for label, path in written.items():
+        click.echo(f"{label}: {path}")

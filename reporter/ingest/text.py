@@ -1,0 +1,116 @@
+"""Bytes -> text for every reader, and the cleaning applied to every field value.
+
+Decoding order: the configured encoding, a byte-order mark, strict UTF-8, then cp1252
+(with a warning). Text that is mostly control characters is treated as not text at all.
+"""
+
+from __future__ import annotations
+
+import codecs
+import re
+import unicodedata
+from dataclasses import dataclass
+
+# UTF-32 marks first: the UTF-32-LE mark starts with the UTF-16-LE one.
+_BOMS = (
+    (codecs.BOM_UTF32_LE, "utf-32-le"),
+    (codecs.BOM_UTF32_BE, "utf-32-be"),
+    (codecs.BOM_UTF8, "utf-8"),
+    (codecs.BOM_UTF16_LE, "utf-16-le"),
+    (codecs.BOM_UTF16_BE, "utf-16-be"),
+)
+# Above this share of control characters a file is binary, whatever it decoded to.
+_MAX_CONTROL_SHARE = 0.05
+_WHITESPACE = re.compile(r"[ \t\f\v\u00a0\u2000-\u200a\u2028\u202f\u205f\u3000]+")
+_PARAGRAPH = "\u2029"  # Unicode paragraph separator, used as a placeholder while folding lines
+_BLANK_LINES = re.compile(r"\n\s*\n")
+
+
+@dataclass(frozen=True)
+class DecodedText:
+    text: str  # newlines normalised to "\n"; "" when the bytes were not text
+    encoding: str  # codec actually used ("" when not text)
+    warnings: tuple[str, ...] = ()
+
+
+def decode_bytes(data: bytes, encoding: str | None = None) -> DecodedText:
+    """Decode a whole file; never raises on bad bytes (they become U+FFFD with a warning)."""
+    warnings: list[str] = []
+    text, used = _decode(data, encoding, warnings)
+    if _looks_binary(text):
+        return DecodedText("", "", (*warnings, "file does not look like text (binary content); nothing read"))
+    return DecodedText(normalise_newlines(text), used, tuple(warnings))
+
+
+def _decode(data: bytes, encoding: str | None, warnings: list[str]) -> tuple[str, str]:
+    if encoding:
+        try:
+            text = data.decode(encoding)
+        except UnicodeDecodeError as exc:
+            warnings.append(f"bytes not valid {encoding} (first at byte {exc.start}); replaced with U+FFFD")
+            text = data.decode(encoding, errors="replace")
+        # Python's utf-8 codec keeps a BOM as U+FEFF; drop it like "utf-8-sig" would.
+        return text.removeprefix("\ufeff"), encoding
+    for bom, codec in _BOMS:
+        if data.startswith(bom):
+            body = data[len(bom):]
+            try:
+                return body.decode(codec), codec
+            except UnicodeDecodeError as exc:
+                warnings.append(f"bytes not valid {codec} after its byte-order mark (byte {exc.start}); replaced")
+                return body.decode(codec, errors="replace"), codec
+    try:
+        return data.decode("utf-8"), "utf-8"
+    except UnicodeDecodeError:
+        pass
+    # cp1252 is what spreadsheet programs on Windows write; five byte values are undefined in it.
+    warnings.append("decoded as cp1252 after UTF-8 failed")
+    return data.decode("cp1252", errors="replace"), "cp1252"
+
+
+def _looks_binary(text: str) -> bool:
+    if not text:
+        return False
+    if "\x00" in text:
+        return True
+    controls = sum(1 for ch in text if unicodedata.category(ch) == "Cc" and ch not in "\t\n\r\f")
+    replaced = text.count("\ufffd")
+    return (controls + replaced) / len(text) > _MAX_CONTROL_SHARE
+
+
+def normalise_newlines(text: str) -> str:
+    """CRLF and lone CR become LF, so line numbers agree whatever wrote the file."""
+    return text.replace("\r\n", "\n").replace("\r", "\n")
+
+
+def clean_value(value: str, keep_paragraphs: bool = False) -> str:
+    """Strip invisible characters and normalise whitespace.
+
+    With `keep_paragraphs` (abstracts), a blank line survives as one "\\n"; single line breaks
+    are hard wraps from the export and become spaces.
+    """
+    value = unicodedata.normalize("NFC", value)
+    value = "".join(ch for ch in value if _is_kept(ch))
+    if keep_paragraphs:
+        value = _BLANK_LINES.sub(_PARAGRAPH, value)  # mark paragraph breaks before folding lines
+    else:
+        value = value.replace(_PARAGRAPH, " ")
+    value = _WHITESPACE.sub(" ", value.replace("\n", " "))
+    if keep_paragraphs:
+        value = "\n".join(part.strip() for part in value.split(_PARAGRAPH) if part.strip())
+    return value.strip()
+
+
+def _is_kept(ch: str) -> bool:
+    if ch in "\n\t":
+        return True
+    # Cc: control characters; Cf: zero-width spaces/joiners, soft hyphens, bidi marks, BOMs.
+    # Cs/Co/Cn: lone surrogates, private use and unassigned code points carry no text.
+    return unicodedata.category(ch) not in ("Cc", "Cf", "Cs", "Co", "Cn")
+
+
+def cut(value: str, max_length: int) -> tuple[str, bool]:
+    """Cut a value to `max_length` characters; say whether it was cut."""
+    if len(value) <= max_length:
+        return value, False
+    return value[:max_length].rstrip(), True

@@ -1,0 +1,66 @@
+"""Render: report context, charts, HTML and PDF through a theme, data exports, run manifest.
+
+`render(inputs, report, output_dir)` builds everything in memory first and then
+writes each file atomically, so a failing theme leaves no half-written report.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from pathlib import Path
+
+from reporter.render.atomic import write_bytes_atomic, write_text_atomic
+from reporter.render.branding import build_theme_view, logo_path
+from reporter.render.context import RenderInputs, ReportContext
+from reporter.render.exports import evidence_table, frame_to_csv, scores_table, write_intake_log
+from reporter.render.manifest import write_manifest
+from reporter.render.themes import ThemeError, build_environment, load_theme
+
+__all__ = ["RenderInputs", "ReportContext", "ThemeError", "render"]
+
+
+def render(inputs: RenderInputs, report, output_dir: Path) -> dict[str, Path]:
+    """Write report.html, report.pdf and data/* into `output_dir`; return label -> path written.
+
+    `report` is the `ReportConfig` (institution, title, reporting_year, theme, logo, accent_colour).
+    """
+    from reporter.render.html import render_html
+    from reporter.render.pdf import render_pdf
+    from reporter.render.sections import build_context
+
+    if not isinstance(inputs, RenderInputs):
+        raise TypeError(f"render: expected RenderInputs, got {type(inputs).__name__}")
+    output_dir = Path(output_dir)
+    theme = load_theme(report.theme)
+    env = build_environment(theme)
+    screen = build_context(inputs, report, theme, medium="screen")
+    printed = dataclasses.replace(screen, theme=build_theme_view(theme, report, "print"))
+    html = render_html(screen, env, theme)
+    pdf, _refused = render_pdf(render_html(printed, env, theme), theme, logo_path(report))
+    data = _data_files(inputs)
+
+    written: dict[str, Path] = {}
+    data_dir = output_dir / "data"
+    for name, text in data.items():
+        written[f"data/{name}"] = write_text_atomic(data_dir / name, text)
+    written["data/intake-log.csv"] = write_intake_log(inputs.intake_log, data_dir)
+    written["data/manifest.json"] = write_manifest(inputs.manifest, dict(written), output_dir,
+                                                   data_dir / "manifest.json")
+    written["report.html"] = write_text_atomic(output_dir / "report.html", html)
+    written["report.pdf"] = write_bytes_atomic(output_dir / "report.pdf", pdf)
+    return written
+
+
+def _data_files(inputs: RenderInputs) -> dict[str, str]:
+    """File name -> text of every CSV/JSON export except the intake log and manifest."""
+    goal_codes = [str(code) for code, _ in inputs.goals]
+    files = {
+        "scores.csv": frame_to_csv(scores_table(inputs.scores, goal_codes)),
+        "evidence.csv": frame_to_csv(evidence_table(inputs.scores, inputs.records, tuple(inputs.goals))),
+    }
+    import reporter.analyse as analyse  # the JSON/table layout of Findings belongs to analyse
+
+    files["findings.json"] = analyse.findings_to_json(inputs.findings)
+    for name, table in sorted(analyse.findings_tables(inputs.findings).items()):
+        files[f"findings-{name.replace('_', '-')}.csv"] = frame_to_csv(table)
+    return files

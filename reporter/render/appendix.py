@@ -1,0 +1,172 @@
+"""The back of the report: evidence appendix, method notes and cautions, arranged from plain data."""
+
+from __future__ import annotations
+
+import math
+from typing import Sequence
+from urllib.parse import quote
+
+import pandas as pd
+
+from reporter.render.context import (
+    Cautions, CountRow, EvidenceGoal, EvidenceRow, InputRow, MethodSection, RenderInputs, SensitivityRow, Table,
+)
+
+POLICY_TEXT = {
+    "score_or_mention": "aligned when the alignment score reaches the threshold or the goal is mentioned explicitly",
+    "score_only": "aligned when the alignment score reaches the threshold; explicit mentions are reported but do not decide",
+    "mention_only": "aligned only when the goal is mentioned explicitly",
+}
+COUNTING_TEXT = {
+    "full": "full counting: a publication counts once for every department or country it involves",
+    "fractional": "fractional counting: a publication involving k departments or countries counts 1/k for each",
+}
+STATUS_TEXT = {"merged": "merged", "set_aside": "set aside"}
+_SENSITIVITY_ORDER = {"low": 0, "chosen": 1, "high": 2}
+
+
+def doi_url(doi: str) -> str:
+    """A plain https://doi.org/ link; '' for values that are not DOIs (no other scheme can slip in)."""
+    doi = (doi or "").strip()
+    if not doi.startswith("10."):
+        return ""
+    # Keep the DOI's own slashes and punctuation; escape anything that would end or alter the URL.
+    return "https://doi.org/" + quote(doi, safe="/:;()._-")
+
+
+def build_evidence(inputs: RenderInputs, goals: Sequence[tuple[str, str]], cap: int) -> tuple[EvidenceGoal, ...]:
+    """Per goal, the aligned publications with the highest alignment scores, at most `cap` of them."""
+    scores = inputs.scores.loc[inputs.scores["is_aligned"].astype(bool)]
+    scores = scores.assign(goal=scores["goal"].astype(str))
+    records = inputs.records.set_index("record_id")
+    blocks = []
+    for code, title in goals:
+        rows = scores.loc[scores["goal"] == code].sort_values(
+            ["alignment_score", "record_id"], ascending=[False, True], kind="stable")
+        if rows.empty:
+            continue
+        shown = []
+        for r in rows.head(cap).itertuples():
+            rec = records.loc[r.record_id]
+            shown.append(EvidenceRow(
+                record_id=str(r.record_id), title=str(rec["title"]), year=int(rec["year"]),
+                departments="; ".join(rec["departments"]), doi=str(rec["doi"]), doi_url=doi_url(str(rec["doi"])),
+                alignment_score=float(r.alignment_score), evidence=str(r.evidence), is_explicit=bool(r.is_explicit),
+            ))
+        total = len(rows)
+        note = f"showing the {len(shown)} strongest of {total}" if total > len(shown) else ""
+        blocks.append(EvidenceGoal(goal=code, title=title, rows=tuple(shown), n_total=total, note=note))
+    return tuple(blocks)
+
+
+def _intake(log: pd.DataFrame) -> tuple[tuple[InputRow, ...], InputRow]:
+    def counts(part: pd.DataFrame, name: str, fmt: str) -> InputRow:
+        status = part["status"]
+        return InputRow(name, fmt, len(part), int((status == "kept").sum()), int((status == "merged").sum()),
+                        int((status == "set_aside").sum()))
+
+    rows = tuple(
+        counts(part, str(name), ", ".join(sorted(part["format"].astype(str).unique())))
+        for name, part in log.groupby("source_file", sort=True)
+    )
+    return rows, counts(log, "all files", "")
+
+
+def _reasons(log: pd.DataFrame) -> tuple[CountRow, ...]:
+    out = log.loc[log["status"] != "kept"]
+    if out.empty:
+        return ()
+    grouped = out.groupby(["status", "reason"], sort=True).size().reset_index(name="n")
+    grouped = grouped.sort_values(["n", "status", "reason"], ascending=[False, True, True], kind="stable")
+    total = len(log)
+    return tuple(CountRow(f"{STATUS_TEXT.get(r.status, r.status)}: {r.reason}", int(r.n), r.n / total)
+                 for r in grouped.itertuples())
+
+
+def _coverage(coverage: dict) -> tuple[CountRow, ...]:
+    rows = [CountRow("publications scored", coverage.get("n_records", math.nan), None)]
+    for key, label in (("abstract", "with an abstract"), ("department", "with a department"),
+                       ("country", "with at least one country")):
+        if f"n_with_{key}" in coverage:
+            rows.append(CountRow(label, coverage[f"n_with_{key}"], coverage.get(f"share_with_{key}")))
+    if "n_non_english" in coverage:
+        n = coverage.get("n_records") or math.nan
+        rows.append(CountRow("not in English", coverage["n_non_english"], coverage["n_non_english"] / n))
+    return tuple(rows)
+
+
+def _sensitivity(frame: pd.DataFrame, goals: Sequence[tuple[str, str]]) -> tuple[SensitivityRow, ...]:
+    if frame.empty:
+        return ()
+    frame = frame.assign(goal=frame["goal"].astype(str), rank=frame["threshold_label"].map(_SENSITIVITY_ORDER))
+    rows = []
+    for code, title in goals:
+        part = frame.loc[frame["goal"] == code].sort_values("rank", kind="stable")
+        if part.empty:
+            continue
+        cells = tuple(CountRow(f"{float(r.threshold):.2f}", r.n_aligned, r.share) for r in part.itertuples())
+        rows.append(SensitivityRow(code, title, cells))
+    return tuple(rows)
+
+
+def _cell_text(value: object) -> str:
+    if isinstance(value, bool) or value is None:
+        return "" if value is None else ("yes" if value else "no")
+    if isinstance(value, float):
+        return "–" if math.isnan(value) else f"{value:.3f}"
+    return str(value)
+
+
+def _table(value: object) -> Table | None:
+    """A validation result of unknown shape (a frame, or a dict of scalars) as display text."""
+    if isinstance(value, pd.DataFrame) and not value.empty:
+        return Table(tuple(str(c).replace("_", " ") for c in value.columns),
+                     tuple(tuple(_cell_text(v) for v in row) for row in value.itertuples(index=False)))
+    if isinstance(value, dict) and value:
+        scalars = [(k, v) for k, v in value.items() if isinstance(v, (int, float, str, bool))]
+        return Table(("measure", "value"), tuple((str(k).replace("_", " "), _cell_text(v)) for k, v in scalars))
+    return None
+
+
+def build_method(inputs: RenderInputs, goals: Sequence[tuple[str, str]]) -> MethodSection:
+    findings, settings = inputs.findings, inputs.score_settings
+    meta = findings.meta
+    per_goal = dict(settings.get("thresholds") or meta.get("thresholds") or {})
+    single = settings.get("threshold", meta.get("threshold"))
+    distinct = {float(v) for v in per_goal.values()}
+    varied = len(distinct) > 1 or (distinct and single is not None and distinct != {float(single)})
+    thresholds = tuple(CountRow(code, float(per_goal[code]), None) for code, _ in goals if code in per_goal) if varied else ()
+    inputs_rows, totals = _intake(inputs.intake_log)
+    extras = tuple(
+        CountRow(str(k).replace("_", " "), v, None) for k, v in sorted(findings.extra.items())
+        if isinstance(v, (int, float)) and not isinstance(v, bool)
+    )
+    policy = str(settings.get("policy", meta.get("policy", "")))
+    counting = str(meta.get("counting", ""))
+    return MethodSection(
+        inputs=inputs_rows, intake_totals=totals, reasons=_reasons(inputs.intake_log),
+        coverage=_coverage(findings.coverage),
+        model={k: str(inputs.model_info.get(k, "")) for k in ("id", "checksum", "backend")},
+        framework={k: str(inputs.framework_info.get(k, "")) for k in ("id", "title", "version", "checksum")},
+        threshold=None if varied or single is None else float(single),
+        thresholds=thresholds,
+        policy=POLICY_TEXT.get(policy, policy),
+        counting=COUNTING_TEXT.get(counting, counting),
+        text_fields=", ".join(settings.get("text_fields", ())),
+        confidence=float(meta.get("confidence", math.nan)),
+        min_group_size=int(meta.get("min_group_size", 10)),
+        fdr=float(meta.get("fdr", math.nan)),
+        sensitivity=_sensitivity(findings.sensitivity, goals),
+        validation=_table(findings.extra.get("validation")),
+        extras=extras,
+        methods=tuple((str(k).replace("_", " "), str(v)) for k, v in sorted(dict(meta.get("methods", {})).items())),
+    )
+
+
+def build_cautions(inputs: RenderInputs) -> Cautions:
+    log = inputs.intake_log
+    set_aside = log.loc[log["status"] == "set_aside", "reason"].astype(str).str.lower()
+    return Cautions(
+        n_non_english=int(inputs.findings.coverage.get("n_non_english", 0)),
+        n_set_aside_language=int(set_aside.str.contains("language|english", regex=True).sum()),
+    )

@@ -1,0 +1,26 @@
+"""ReportContext -> one self-contained HTML document through the theme's report.html."""
+
+from __future__ import annotations
+
+import jinja2
+
+from reporter.render.context import ReportContext
+from reporter.render.themes import Theme, ThemeError
+
+ENTRY_TEMPLATE = "report.html"
+
+
+def render_html(context: ReportContext, env: jinja2.Environment, theme: Theme) -> str:
+    """Render the theme's entry template; any template failure becomes a ThemeError naming the template."""
+    try:
+        return env.get_template(ENTRY_TEMPLATE).render(report=context)
+    except jinja2.TemplateNotFound as exc:
+        raise ThemeError(
+            f"theme {theme.name!r}: template {exc.name!r} not found in the theme folders "
+            f"({', '.join(str(f) for f in theme.folders)}); templates cannot read files outside them"
+        ) from None
+    except jinja2.TemplateSyntaxError as exc:
+        raise ThemeError(f"theme {theme.name!r}: {exc.filename or exc.name}:{exc.lineno}: {exc.message}") from None
+    except jinja2.TemplateError as exc:
+        # UndefinedError, SecurityError (sandbox) and the like: a theme bug, reported by name.
+        raise ThemeError(f"theme {theme.name!r}: {type(exc).__name__}: {exc}") from None

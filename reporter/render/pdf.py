@@ -1,0 +1,57 @@
+"""Print HTML -> PDF bytes with WeasyPrint, fetching only theme files and the configured logo."""
+
+from __future__ import annotations
+
+import logging
+import mimetypes
+from pathlib import Path
+from urllib.parse import unquote, urlsplit
+
+from reporter.render.themes import Theme
+
+LOGGER = logging.getLogger(__name__)
+
+
+def _fetcher_class():
+    from weasyprint.urls import URLFetcher, URLFetcherResponse
+
+    class LocalOnlyFetcher(URLFetcher):
+        """Serves data: URIs and an explicit set of local files; refuses every other URL."""
+
+        def __init__(self, allowed: frozenset[Path]):
+            super().__init__(allowed_protocols=("data", "file"), allow_redirects=False)
+            self.allowed = allowed
+            self.refused: list[str] = []
+
+        def fetch(self, url: str, headers: dict | None = None):
+            if url.startswith("data:"):
+                return super().fetch(url, headers)
+            parts = urlsplit(url)
+            if parts.scheme == "file":
+                path = Path(unquote(parts.path)).resolve()
+                if path in self.allowed:
+                    mime = mimetypes.guess_type(path.name)[0] or "application/octet-stream"
+                    return URLFetcherResponse(url, path.read_bytes(), {"Content-Type": mime})
+            self.refused.append(url)
+            LOGGER.warning("report.pdf: refused to fetch %s (only theme files and the logo are allowed)", url)
+            raise ValueError(f"refused: {url}")
+
+    return LocalOnlyFetcher
+
+
+def allowed_files(theme: Theme, logo: Path | None) -> frozenset[Path]:
+    files = {p.resolve() for folder in theme.folders for p in folder.rglob("*") if p.is_file()}
+    # A symlink leading out of the theme folder resolves elsewhere; keep only what stays inside.
+    files = {p for p in files if any(p.is_relative_to(folder) for folder in theme.folders)}
+    if logo is not None:
+        files.add(logo.resolve())
+    return frozenset(files)
+
+
+def render_pdf(html: str, theme: Theme, logo: Path | None) -> tuple[bytes, tuple[str, ...]]:
+    """The PDF bytes and the URLs that were refused (empty for a well-made theme)."""
+    from weasyprint import HTML  # heavy; only when a PDF is made
+
+    fetcher = _fetcher_class()(allowed_files(theme, logo))
+    document = HTML(string=html, base_url=theme.folders[0].as_uri() + "/", url_fetcher=fetcher)
+    return document.write_pdf(), tuple(fetcher.refused)

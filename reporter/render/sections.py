@@ -1,0 +1,201 @@
+"""Arrange analyse's figures into the report's sections: `RenderInputs` -> `ReportContext`.
+
+Only ordering, selection and looking up names happens here; the figures themselves
+come from `Findings` unchanged.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Sequence
+
+import pandas as pd
+
+from reporter.records import ENRICHED_COLUMNS, INTAKE_LOG_COLUMNS, RECORD_COLUMNS, SCORE_COLUMNS, require_columns
+from reporter.render import charts
+from reporter.render.appendix import build_cautions, build_evidence, build_method
+from reporter.render.branding import build_branding, build_theme_view
+from reporter.render.context import (
+    Cell, ChangeRow, ChangeSection, DepartmentSection, GoalProfile, GoalRow, GroupRow, PairRow,
+    PartnerSection, RenderInputs, ReportContext, SectionLink, Summary, TogetherSection,
+)
+from reporter.render.themes import Theme
+
+N_LEADING_GOALS = 3
+N_COUNTRIES_SHOWN = 15
+N_PAIRS_SHOWN = 10
+
+#: Sections in reading order: (anchor, heading). Headings are the tests' landmarks too.
+SECTIONS = (
+    ("at-a-glance", "At a glance", "_summary.html"),
+    ("goal-profile", "Goal profile", "_goal_profile.html"),
+    ("change-over-time", "Change over time", "_change.html"),
+    ("departments", "Departments", "_departments.html"),
+    ("international-partners", "International partners", "_partners.html"),
+    ("goals-together", "Goals studied together", "_together.html"),
+    ("method", "How the figures were made", "_method.html"),
+    ("cautions", "Limits and cautions", "_cautions.html"),
+    ("evidence", "Evidence appendix", "_evidence.html"),
+)
+
+
+def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: str = "screen") -> ReportContext:
+    """Everything the templates see, arranged once; `report` is the `ReportConfig`."""
+    _check_inputs(inputs)
+    findings = inputs.findings
+    goals = tuple((str(code), str(title)) for code, title in inputs.goals)
+    titles = dict(goals)
+    meta = findings.meta
+    min_size = int(meta.get("min_group_size", 10))
+    profile_rows = _goal_rows(findings.goals, goals)
+    change_rows = _change_rows(findings.changes, goals)
+    comparison_years = tuple(int(y) for y in meta.get("comparison_years", ()))
+    has_comparison = bool(comparison_years) and bool(change_rows)
+    headline = findings.headline
+    ranked = sorted((r for r in profile_rows if r.share > 0), key=lambda r: -r.share)
+    summary = Summary(
+        n_publications=headline["n_publications"],
+        n_aligned_any=headline["n_aligned_any"],
+        share_aligned_any=headline["share_aligned_any"],
+        share_low=headline["share_aligned_any_low"],
+        share_high=headline["share_aligned_any_high"],
+        n_explicit_any=headline.get("n_explicit_any", math.nan),
+        leading_goals=tuple(ranked[:N_LEADING_GOALS]),
+        changes=tuple(r for r in change_rows if r.is_change),
+        has_comparison=has_comparison,
+    )
+    years = tuple(sorted(int(y) for y in meta.get("years", ()))) or (int(report.reporting_year),)
+    n_years = findings.by_year["year"].nunique() if not findings.by_year.empty else 0
+    change = ChangeSection(
+        has_comparison=has_comparison,
+        reporting_year=int(report.reporting_year),
+        comparison_years=comparison_years,
+        rows=change_rows,
+        chart=charts.draw_change(findings.by_year, goals, theme) if n_years > 1 else None,
+        fdr=float(meta.get("fdr", math.nan)),
+    )
+    return ReportContext(
+        title=report.title,
+        branding=build_branding(report),
+        reporting_year=int(report.reporting_year),
+        years=years,
+        generated_at=inputs.generated_at,
+        software=f"Waymark {inputs.manifest.get('waymark_version', '')}".strip(),
+        sections=tuple(SectionLink(*section) for section in SECTIONS),
+        summary=summary,
+        goal_profile=GoalProfile(rows=profile_rows, chart=charts.draw_goal_profile(profile_rows, theme)),
+        change=change,
+        departments=_departments(findings.by_department, goals, theme, min_size),
+        partners=_partners(findings.by_country, findings.collaboration, goals, theme, min_size),
+        together=_together(findings.cooccurrence, goals, titles, theme),
+        method=build_method(inputs, goals),
+        cautions=build_cautions(inputs),
+        evidence=build_evidence(inputs, goals, theme.evidence_per_goal),
+        theme=build_theme_view(theme, report, medium),
+    )
+
+
+def _check_inputs(inputs: RenderInputs) -> None:
+    require_columns(inputs.records, RECORD_COLUMNS + ENRICHED_COLUMNS, "render: records")
+    require_columns(inputs.scores, SCORE_COLUMNS, "render: scores")
+    require_columns(inputs.intake_log, INTAKE_LOG_COLUMNS, "render: intake_log")
+
+
+def _goal_rows(frame: pd.DataFrame, goals: Sequence[tuple[str, str]]) -> tuple[GoalRow, ...]:
+    by_goal = frame.assign(goal=frame["goal"].astype(str)).set_index("goal")
+    rows = []
+    for code, title in goals:
+        if code not in by_goal.index:
+            continue
+        r = by_goal.loc[code]
+        rows.append(GoalRow(
+            goal=code, title=title, n=r["n"], n_aligned=r["n_aligned"], n_explicit=r["n_explicit"],
+            n_content_only=r["n_content_only"], share=r["share"], share_low=r["share_low"],
+            share_high=r["share_high"], mean_score=r.get("mean_score", math.nan),
+        ))
+    return tuple(rows)
+
+
+def _change_rows(frame: pd.DataFrame, goals: Sequence[tuple[str, str]]) -> tuple[ChangeRow, ...]:
+    if frame.empty:
+        return ()
+    by_goal = frame.assign(goal=frame["goal"].astype(str))
+    rows = []
+    for code, title in goals:
+        for _, r in by_goal.loc[by_goal["goal"] == code].iterrows():
+            rows.append(ChangeRow(
+                goal=code, title=title, baseline=str(r["baseline"]), year=int(r["year"]),
+                share_baseline=r["share_baseline"], share=r["share"], diff=r["diff"], diff_low=r["diff_low"],
+                diff_high=r["diff_high"], p_adjusted=r["p_adjusted"], is_change=bool(r["is_change"]),
+                verdict=str(r["verdict"]),
+            ))
+    return tuple(rows)
+
+
+def _group_rows(frame: pd.DataFrame, key: str, label: str, goals: Sequence[tuple[str, str]],
+                order: Sequence[str] | None = None) -> tuple[GroupRow, ...]:
+    """One row per group with a cell per goal; groups ordered largest first, then by name."""
+    if frame.empty:
+        return ()
+    frame = frame.assign(goal=frame["goal"].astype(str))
+    sizes = frame.groupby(key, sort=True).agg(n=("n", "max"), label=(label, "first"),
+                                              small=("is_too_small", "any"))
+    if order is None:
+        order = sizes.sort_values(["n", "label"], ascending=[False, True], kind="stable").index.tolist()
+    rows = []
+    for group in order:
+        if group not in sizes.index:
+            continue
+        part = frame.loc[frame[key] == group].set_index("goal")
+        too_small = bool(sizes.loc[group, "small"])
+        cells = []
+        for code, _ in goals:
+            if code in part.index:
+                c = part.loc[code]
+                cells.append(Cell(code, c["n"], c["n_aligned"], c["share"], c["share_low"], c["share_high"],
+                                  bool(c["is_too_small"])))
+            else:
+                cells.append(Cell(code, sizes.loc[group, "n"], math.nan, math.nan, math.nan, math.nan, too_small))
+        rows.append(GroupRow(code=str(group), label=str(sizes.loc[group, "label"]), n=sizes.loc[group, "n"],
+                             is_too_small=too_small, cells=tuple(cells)))
+    return tuple(rows)
+
+
+def _departments(frame: pd.DataFrame, goals, theme: Theme, min_size: int) -> DepartmentSection:
+    rows = _group_rows(frame.assign(label=frame["department"]), "department", "label", goals)
+    chart = None
+    if rows:
+        chart = charts.draw_group_heatmap(rows, goals, theme, what="departments", min_group_size=min_size)
+    return DepartmentSection(rows=rows, chart=chart, n_too_small=sum(r.is_too_small for r in rows),
+                             min_group_size=min_size)
+
+
+def _partners(countries: pd.DataFrame, collaboration: pd.DataFrame, goals, theme: Theme,
+              min_size: int) -> PartnerSection:
+    all_countries = _group_rows(countries, "country", "country_name", goals)
+    shown = all_countries[:N_COUNTRIES_SHOWN]
+    labels = {"international": "International", "domestic": "Domestic only"}
+    collab = _group_rows(collaboration.assign(label=collaboration["group"].map(labels)), "group", "label",
+                         goals, order=["international", "domestic"])
+    return PartnerSection(
+        collaboration=collab,
+        countries=shown,
+        n_countries=len(all_countries),
+        collaboration_chart=charts.draw_collaboration(collab, goals, theme) if collab else None,
+        country_chart=(charts.draw_group_heatmap(shown, goals, theme, what="partner countries",
+                                                 min_group_size=min_size, value="n_aligned") if shown else None),
+    )
+
+
+def _together(frame: pd.DataFrame, goals, titles: dict[str, str], theme: Theme) -> TogetherSection:
+    known = frame.assign(goal_a=frame["goal_a"].astype(str), goal_b=frame["goal_b"].astype(str))
+    known = known.loc[known["goal_a"].isin(titles) & known["goal_b"].isin(titles) & (known["n"] > 0)]
+    position = {code: i for i, (code, _) in enumerate(goals)}
+    ranked = known.assign(pa=known["goal_a"].map(position), pb=known["goal_b"].map(position)).sort_values(
+        ["n", "pa", "pb"], ascending=[False, True, True], kind="stable")
+    pairs = tuple(
+        PairRow(r.goal_a, titles[r.goal_a], r.goal_b, titles[r.goal_b], r.n)
+        for r in ranked.head(N_PAIRS_SHOWN).itertuples()
+    )
+    chart = charts.draw_cooccurrence(known[["goal_a", "goal_b", "n"]], goals, theme) if pairs else None
+    return TogetherSection(pairs=pairs, chart=chart)

@@ -1,0 +1,78 @@
+"""SQLite embedding cache keyed by model checksum + text hash.
+
+Each batch is committed as soon as it is embedded, so a run killed mid-way
+keeps what it finished and the next run resumes from there. WAL journaling
+keeps readers and the writer out of each other's way.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import sqlite3
+from pathlib import Path
+from typing import Iterable, Sequence
+
+import numpy as np
+
+_SCHEMA = """
+CREATE TABLE IF NOT EXISTS embeddings (
+    model TEXT NOT NULL,
+    text_hash BLOB NOT NULL,
+    vector BLOB NOT NULL,
+    PRIMARY KEY (model, text_hash)
+) WITHOUT ROWID
+"""
+_CHUNK = 500  # stays under SQLite's host-parameter limit
+
+
+def text_hash(text: str) -> bytes:
+    return hashlib.blake2b(text.encode("utf-8"), digest_size=16).digest()
+
+
+class EmbeddingCache:
+    """Vectors by (model checksum, text hash). Use as a context manager or call close()."""
+
+    def __init__(self, path: Path, model_checksum: str, dimension: int):
+        path.parent.mkdir(parents=True, exist_ok=True)
+        self.path = path
+        self._model = model_checksum
+        self._dimension = dimension
+        self._db = sqlite3.connect(path)
+        self._db.execute("PRAGMA journal_mode=WAL")
+        self._db.execute("PRAGMA synchronous=NORMAL")
+        self._db.execute(_SCHEMA)
+        self._db.commit()
+
+    def get_many(self, hashes: Sequence[bytes]) -> dict[bytes, np.ndarray]:
+        found: dict[bytes, np.ndarray] = {}
+        for start in range(0, len(hashes), _CHUNK):
+            chunk = list(hashes[start : start + _CHUNK])
+            marks = ",".join("?" * len(chunk))
+            rows = self._db.execute(
+                f"SELECT text_hash, vector FROM embeddings WHERE model = ? AND text_hash IN ({marks})",
+                [self._model, *chunk],
+            )
+            for key, blob in rows:
+                vector = np.frombuffer(blob, dtype=np.float32)
+                if vector.shape[0] == self._dimension:
+                    found[key] = vector
+        return found
+
+    def put_many(self, items: Iterable[tuple[bytes, np.ndarray]]) -> None:
+        self._db.executemany(
+            "INSERT OR REPLACE INTO embeddings (model, text_hash, vector) VALUES (?, ?, ?)",
+            [(self._model, key, np.asarray(vec, dtype=np.float32).tobytes()) for key, vec in items],
+        )
+        self._db.commit()
+
+    def count(self) -> int:
+        return self._db.execute("SELECT COUNT(*) FROM embeddings WHERE model = ?", [self._model]).fetchone()[0]
+
+    def close(self) -> None:
+        self._db.close()
+
+    def __enter__(self) -> "EmbeddingCache":
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        self.close()

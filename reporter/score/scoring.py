@@ -1,0 +1,243 @@
+"""score(records, ...) -> Scores: explicit mentions + semantic alignment per publication and goal.
+
+Records are processed in chunks so memory stays flat however large the corpus:
+per chunk, sentences are embedded (through the cache), scored against the goal
+space, aggregated per publication, and only the small per-publication results
+are kept. Columns of `Scores.table`: SCORE_COLUMNS (reporter/records.py).
+"""
+
+from __future__ import annotations
+
+import logging
+import sys
+import time
+from dataclasses import asdict, dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from reporter.config import ScoreConfig
+from reporter.records import RECORD_COLUMNS, SCORE_COLUMNS, require_columns
+from reporter.score.align import AlignParams, GoalSpace, aggregate_by_record, sentence_scores
+from reporter.score.cache import EmbeddingCache
+from reporter.score.encode import EncodeStats, embed_texts
+from reporter.score.evidence import pick_evidence
+from reporter.score.framework import GoalFramework
+from reporter.score.lexical import KeywordMatcher, lexical_score
+from reporter.score.mentions import compile_mentions, find_mentions
+from reporter.score.sentences import SentenceSplitter, TextUnit, fit_to_model, record_units
+
+log = logging.getLogger(__name__)
+
+CHUNK_RECORDS = 1000  # publications per streaming chunk: bounded memory, still full model batches
+EVIDENCE_PER_PAIR = 2  # evidence sentences kept per aligned (publication, goal)
+
+#: Columns of `Scores.evidence`.
+EVIDENCE_COLUMNS = ("record_id", "goal", "rank", "kind", "sentence", "sentence_score", "is_mention")
+
+
+@dataclass(frozen=True)
+class ScoringMethod:
+    """Every tunable of the method in one place; recorded in the run manifest."""
+
+    align: AlignParams = field(default_factory=AlignParams)
+    lexical_weight: float = 0.35  # how much the keyword signal can lift a score (noisy-or weight)
+    lexical_scale: float = 2.0  # distinct keywords for ~63% of the lexical signal
+
+
+@dataclass(frozen=True)
+class Scores:
+    table: pd.DataFrame  # SCORE_COLUMNS, one row per (record, goal)
+    evidence: pd.DataFrame  # EVIDENCE_COLUMNS, for aligned pairs
+    general_mentions: pd.DataFrame  # record_id, n_general_mentions
+    sentences: pd.DataFrame | None  # per-sentence scores when asked for
+    thresholds: dict[str, float]
+    policy: str
+    method: dict
+    stats: dict
+
+
+class Embedder:  # protocol-like documentation of what `score` needs from a model
+    info: object
+
+    def encode(self, texts: list[str]) -> np.ndarray: ...
+    def count_tokens(self, texts: list[str]) -> list[int]: ...
+
+
+def build_goal_space(framework: GoalFramework, embedder, cache: EmbeddingCache | None, stats: EncodeStats) -> GoalSpace:
+    texts: list[str] = []
+    owners: list[int] = []
+    for g, goal in enumerate(framework.goals):
+        texts.extend(goal.descriptors)
+        owners.extend([g] * len(goal.descriptors))
+    vectors = embed_texts(texts, embedder, cache, stats)
+    background = embed_texts(list(framework.background), embedder, cache, stats)
+    return GoalSpace(
+        goal_codes=tuple(goal.code for goal in framework.goals),
+        descriptors=vectors,
+        descriptor_goal=np.asarray(owners),
+        background=background,
+    )
+
+
+def decide(score: np.ndarray, explicit: np.ndarray, thresholds: np.ndarray, policy: str) -> np.ndarray:
+    """The alignment decision under the configured policy."""
+    by_score = score >= thresholds
+    if policy == "score_only":
+        return by_score
+    if policy == "mention_only":
+        return explicit
+    return by_score | explicit
+
+
+def score(
+    records: pd.DataFrame,
+    framework: GoalFramework,
+    embedder,
+    cfg: ScoreConfig,
+    cache: EmbeddingCache | None = None,
+    method: ScoringMethod | None = None,
+    thresholds: dict[str, float] | None = None,
+    keep_sentences: bool = False,
+    show_progress: bool = True,
+) -> Scores:
+    """Score every record against every goal of the framework."""
+    require_columns(records, ("record_id", *cfg.text_fields), "score")
+    method = method or ScoringMethod()
+    codes = tuple(goal.code for goal in framework.goals)
+    thresholds = {code: (thresholds or {}).get(code, cfg.threshold) for code in codes}
+    threshold_row = np.array([thresholds[c] for c in codes], dtype=np.float32)
+    stats = EncodeStats()
+    began = time.perf_counter()
+    space = build_goal_space(framework, embedder, cache, stats)
+    patterns = compile_mentions(framework)
+    keywords = KeywordMatcher.build(codes, [goal.keywords for goal in framework.goals])
+    splitter = SentenceSplitter()
+
+    tables, evidence_rows, general_rows, sentence_tables = [], [], [], []
+    progress = _progress(len(records), show_progress)
+    for start in range(0, len(records), CHUNK_RECORDS):
+        chunk = records.iloc[start : start + CHUNK_RECORDS]
+        result = _score_chunk(
+            chunk, cfg, space, patterns, framework, keywords, splitter, embedder, cache, stats, method,
+            threshold_row, keep_sentences,
+        )
+        tables.append(result[0])
+        evidence_rows.extend(result[1])
+        general_rows.extend(result[2])
+        if keep_sentences:
+            sentence_tables.append(result[3])
+        if progress is not None:
+            progress.update(len(chunk))
+            elapsed = max(stats.seconds_encoding, 1e-9)
+            progress.set_postfix_str(f"{stats.n_encoded / elapsed:.0f} sentences/s encoded")
+    if progress is not None:
+        progress.close()
+
+    table = pd.concat(tables, ignore_index=True) if tables else pd.DataFrame(columns=list(SCORE_COLUMNS))
+    seconds = time.perf_counter() - began
+    return Scores(
+        table=table.loc[:, list(SCORE_COLUMNS)],
+        evidence=pd.DataFrame(evidence_rows, columns=list(EVIDENCE_COLUMNS)),
+        general_mentions=pd.DataFrame(general_rows, columns=["record_id", "n_general_mentions"]),
+        sentences=pd.concat(sentence_tables, ignore_index=True) if keep_sentences and sentence_tables else None,
+        thresholds=thresholds,
+        policy=cfg.policy,
+        method=asdict(method),
+        stats={
+            "n_records": len(records),
+            "n_sentences": stats.n_texts,
+            "n_unique_sentences": stats.n_unique,
+            "n_cache_hits": stats.n_cache_hits,
+            "n_encoded": stats.n_encoded,
+            "seconds_encoding": round(stats.seconds_encoding, 3),
+            "seconds_total": round(seconds, 3),
+            "sentences_per_second": round(stats.n_encoded / stats.seconds_encoding, 1) if stats.seconds_encoding else None,
+        },
+    )
+
+
+def _progress(total: int, show: bool):
+    if not show or total == 0:
+        return None
+    from tqdm import tqdm
+
+    return tqdm(total=total, unit="pub", desc="Scoring", file=sys.stderr, leave=False)
+
+
+def _score_chunk(chunk, cfg, space, patterns, framework, keywords, splitter, embedder, cache, stats, method,
+                 threshold_row, keep_sentences):
+    record_ids = chunk["record_id"].tolist()
+    units: list[TextUnit] = []
+    explicit_counts = np.zeros((len(chunk), space.n_goals), dtype=np.int32)
+    lexical = np.zeros((len(chunk), space.n_goals), dtype=np.float32)
+    general_rows = []
+    mention_spans: dict[tuple[int, int], list[tuple[int, int]]] = {}
+    code_index = {code: g for g, code in enumerate(space.goal_codes)}
+    for i, row in enumerate(chunk.itertuples(index=False)):
+        fields = {f: getattr(row, f) for f in ("title", "abstract", "keywords") if hasattr(row, f)}
+        units.extend(record_units(row.record_id, fields, cfg.text_fields, splitter))
+        full_text = _joined_text(fields, cfg.text_fields)
+        found = find_mentions(full_text, patterns)
+        for code, mentions in found.by_goal.items():
+            if code in code_index:
+                explicit_counts[i, code_index[code]] = len(mentions)
+        general_rows.append((row.record_id, found.n_general))
+        hits = keywords.hits(full_text)
+        lexical[i] = [lexical_score(h, method.lexical_scale) for h in hits]
+
+    units = fit_to_model(units, embedder.info.max_tokens, embedder.count_tokens)
+    vectors = embed_texts([u.text for u in units], embedder, cache, stats)
+    position = {rid: i for i, rid in enumerate(record_ids)}
+    unit_record = np.array([position[u.record_id] for u in units], dtype=np.int64)
+    per_sentence, _ = sentence_scores(vectors, space, method.align) if len(units) else (
+        np.zeros((0, space.n_goals), np.float32), None)
+    semantic = aggregate_by_record(unit_record, per_sentence, len(chunk), method.align.top_k)
+    # Noisy-or: the keyword signal can lift a score but never lower it.
+    combined = semantic + (1.0 - semantic) * method.lexical_weight * lexical
+    explicit = explicit_counts > 0
+    aligned = decide(combined, explicit, threshold_row, cfg.policy)
+
+    evidence_rows, best_text, best_score = pick_evidence(
+        units, unit_record, per_sentence, aligned, explicit, record_ids, space.goal_codes, patterns,
+        EVIDENCE_PER_PAIR,
+    )
+    n, g = len(chunk), space.n_goals
+    table = pd.DataFrame({
+        "record_id": np.repeat(record_ids, g),
+        "goal": np.tile(space.goal_codes, n),
+        "alignment_score": np.round(combined.reshape(-1).astype(float), 6),
+        "n_explicit_mentions": explicit_counts.reshape(-1),
+        "is_explicit": explicit.reshape(-1),
+        "is_aligned": aligned.reshape(-1),
+        "evidence": best_text.reshape(-1),
+        "evidence_score": np.round(best_score.reshape(-1).astype(float), 6),
+    })
+    sentences = None
+    if keep_sentences:
+        sentences = _sentence_table(units, per_sentence, space.goal_codes)
+    return table, evidence_rows, general_rows, sentences
+
+
+def _joined_text(fields: dict, text_fields) -> str:
+    parts = []
+    if "title" in text_fields and fields.get("title"):
+        parts.append(str(fields["title"]))
+    if "abstract" in text_fields and fields.get("abstract"):
+        parts.append(str(fields["abstract"]))
+    if "keywords" in text_fields and fields.get("keywords"):
+        parts.append("; ".join(fields["keywords"]))
+    return "\n".join(parts)
+
+
+def _sentence_table(units: list[TextUnit], per_sentence: np.ndarray, codes: tuple[str, ...]) -> pd.DataFrame:
+    best = per_sentence.argmax(axis=1) if len(units) else np.zeros(0, dtype=int)
+    return pd.DataFrame({
+        "record_id": [u.record_id for u in units],
+        "position": [u.position for u in units],
+        "kind": [u.kind for u in units],
+        "sentence": [u.text for u in units],
+        "top_goal": [codes[b] for b in best],
+        "top_score": [float(per_sentence[i, b]) for i, b in enumerate(best)],
+        **{f"score_{c}": np.round(per_sentence[:, g].astype(float), 6) for g, c in enumerate(codes)},
+    })

@@ -1,0 +1,71 @@
+"""IntakeResult -> a plain-text intake summary: counts per file and per year, reasons, warnings."""
+
+from __future__ import annotations
+
+import re
+
+import pandas as pd
+
+from reporter.records import INTAKE_LOG_COLUMNS, IntakeResult, require_columns
+
+_COUNT_HEADERS = ("read", "kept", "merged", "set aside")
+_STATUSES = ("kept", "merged", "set_aside")
+
+
+def format_intake_summary(result: IntakeResult) -> str:
+    """Tables of read / kept / merged / set aside by file and by year, then reasons and warnings."""
+    log = result.log
+    require_columns(log, INTAKE_LOG_COLUMNS, "format_intake_summary")
+    parts = [
+        _table(("file", *_COUNT_HEADERS), _count_rows(log, log["source_file"].astype(str))),
+        _table(("year", *_COUNT_HEADERS), _count_rows(log, _year_labels(log["year"]))),
+    ]
+    for status, title in (("set_aside", "set aside"), ("merged", "merged")):
+        reasons = log.loc[log["status"] == status, "reason"].astype(str).map(generalise_reason)
+        if len(reasons):
+            counts = reasons.value_counts(sort=False).sort_index()
+            counts = counts.sort_values(ascending=False, kind="stable")
+            parts.append(_table((f"{title}: reason", "records"), [(r, str(n)) for r, n in counts.items()]))
+    if result.warnings:
+        parts.append("warnings:\n" + "\n".join(f"  {w}" for w in result.warnings))
+    return "\n\n".join(parts) + "\n"
+
+
+def generalise_reason(reason: str) -> str:
+    """The fixed part of a reason: text before ":" or "(", numbers as N.
+
+    "unparseable entry at line 12: ..." -> "unparseable entry at line N";
+    "outside the configured years (2019)" -> "outside the configured years".
+    """
+    head = re.split(r"[:(]", reason, maxsplit=1)[0].strip()
+    return re.sub(r"\d+", "N", head) or "(no reason given)"
+
+
+def _year_labels(years: pd.Series) -> pd.Series:
+    return years.map(lambda y: "no year" if pd.isna(y) else str(int(y)))
+
+
+def _count_rows(log: pd.DataFrame, groups: pd.Series) -> list[tuple[str, ...]]:
+    rows: list[tuple[str, ...]] = []
+    # Years sort as text, which is numeric order for four digits; "no year" comes last.
+    labels = sorted(set(groups), key=lambda label: (label == "no year", label))
+    for label in labels:
+        rows.append((label, *_counts(log[groups == label])))
+    rows.append(("all", *_counts(log)))
+    return rows
+
+
+def _counts(log: pd.DataFrame) -> tuple[str, ...]:
+    status = log["status"]
+    return (str(len(log)), *(str(int((status == s).sum())) for s in _STATUSES))
+
+
+def _table(headers: tuple[str, ...], rows: list[tuple[str, ...]]) -> str:
+    widths = [max(len(str(row[i])) for row in (headers, *rows)) for i in range(len(headers))]
+
+    def line(cells: tuple[str, ...]) -> str:
+        first = str(cells[0]).ljust(widths[0])
+        rest = (str(c).rjust(w) for c, w in zip(cells[1:], widths[1:]))
+        return "  ".join((first, *rest)).rstrip()
+
+    return "\n".join([line(headers), line(tuple("-" * w for w in widths)), *(line(r) for r in rows)])

@@ -1,0 +1,87 @@
+"""The analyse stage's statistics checked against statsmodels and scipy on the same inputs."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from scipy.stats import bootstrap, chi2_contingency
+from statsmodels.stats.multitest import multipletests
+from statsmodels.stats.proportion import confint_proportions_2indep, proportion_confint
+
+from reporter.analyse.intervals import (
+    bh_adjust,
+    bootstrap_mean_interval,
+    difference_p_value,
+    newcombe_difference,
+    wilson_interval,
+)
+
+PROPORTION_CASES = [(7, 40), (0, 25), (25, 25), (1, 3), (180, 612), (12, 10_000)]
+
+
+@pytest.mark.parametrize("confidence", [0.95, 0.9])
+@pytest.mark.parametrize(("successes", "n"), PROPORTION_CASES)
+def test_wilson_interval_matches_statsmodels(successes, n, confidence):
+    """Source: statsmodels proportion_confint(method="wilson"); Wilson (1927)."""
+    expected = proportion_confint(successes, n, alpha=1 - confidence, method="wilson")
+    assert wilson_interval(successes, n, confidence) == pytest.approx(expected, abs=1e-12)
+
+
+def test_wilson_interval_on_arrays_matches_statsmodels():
+    """Source: statsmodels proportion_confint(method="wilson"); Wilson (1927)."""
+    x = np.array([c[0] for c in PROPORTION_CASES])
+    n = np.array([c[1] for c in PROPORTION_CASES])
+    low, high = wilson_interval(x, n, 0.95)
+    expected_low, expected_high = proportion_confint(x, n, alpha=0.05, method="wilson")
+    np.testing.assert_allclose(low, expected_low, atol=1e-12)
+    np.testing.assert_allclose(high, expected_high, atol=1e-12)
+
+
+@pytest.mark.parametrize(
+    ("x1", "n1", "x2", "n2"),
+    [(30, 60, 18, 55), (18, 55, 30, 60), (0, 20, 5, 20), (20, 20, 0, 20), (56, 70, 48, 80), (9, 10, 3, 10)],
+)
+def test_newcombe_difference_matches_statsmodels(x1, n1, x2, n2):
+    """Source: statsmodels confint_proportions_2indep(method="newcomb", compare="diff"); Newcombe (1998),
+    method 10. statsmodels' interval is for count1/nobs1 - count2/nobs2, our p1 - p2."""
+    diff, low, high = newcombe_difference(x1, n1, x2, n2, 0.95)
+    expected = confint_proportions_2indep(x1, n1, x2, n2, method="newcomb", compare="diff", alpha=0.05)
+    assert diff == pytest.approx(x1 / n1 - x2 / n2)
+    assert (low, high) == pytest.approx(expected, abs=1e-12)
+    assert low <= diff <= high, "the interval holds the observed difference"
+
+
+@pytest.mark.parametrize(("x1", "n1", "x2", "n2"), [(30, 60, 18, 55), (5, 40, 12, 41), (70, 100, 69, 100)])
+def test_difference_p_value_matches_pearson_chi_squared(x1, n1, x2, n2):
+    """Source: scipy chi2_contingency(correction=False): the score test of p1 = p2 is Pearson's
+    chi-squared test on the 2x2 table (textbook identity, from memory)."""
+    table = [[x1, n1 - x1], [x2, n2 - x2]]
+    assert difference_p_value(x1, n1, x2, n2) == pytest.approx(chi2_contingency(table, correction=False).pvalue)
+
+
+def test_bh_adjust_matches_statsmodels():
+    """Source: statsmodels multipletests(method="fdr_bh"); Benjamini & Hochberg (1995)."""
+    p = np.array([0.001, 0.008, 0.039, 0.041, 0.042, 0.06, 0.074, 0.205, 0.212, 0.216, 0.222, 0.251])
+    shuffled = np.random.default_rng(3).permutation(p)
+    expected = multipletests(shuffled, method="fdr_bh")[1]
+    np.testing.assert_allclose(bh_adjust(shuffled), expected, atol=1e-12)
+
+
+def test_bh_adjust_leaves_untested_out_of_the_family():
+    """Source: statsmodels multipletests(method="fdr_bh") on the tests actually run; Benjamini & Hochberg (1995)."""
+    p = np.array([0.01, np.nan, 0.04, 0.03, np.nan])
+    adjusted = bh_adjust(p)
+    assert np.isnan(adjusted[[1, 4]]).all()
+    np.testing.assert_allclose(adjusted[[0, 2, 3]], multipletests(p[[0, 2, 3]], method="fdr_bh")[1], atol=1e-12)
+
+
+@pytest.mark.parametrize("batch", [None, 37])
+def test_bootstrap_mean_interval_matches_scipy(batch):
+    """Source: scipy.stats.bootstrap(method="percentile") with the same data, Generator seed and batch."""
+    data = np.random.default_rng(11).beta(2, 5, size=60)
+    ours = bootstrap_mean_interval(data, np.random.default_rng(2025), 999, 0.95, batch=batch)
+    theirs = bootstrap(
+        (data,), np.mean, n_resamples=999, confidence_level=0.95, method="percentile",
+        rng=np.random.default_rng(2025), batch=batch, vectorized=True,
+    ).confidence_interval
+    assert ours == pytest.approx((theirs.low, theirs.high), abs=1e-12)
