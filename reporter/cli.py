@@ -24,6 +24,8 @@ def _fail(error: ReporterError) -> None:
 def _setup_logging(verbose: int, quiet: bool) -> None:
     level = logging.WARNING if quiet else (logging.DEBUG if verbose > 1 else logging.INFO)
     logging.basicConfig(level=level, format="%(levelname)s %(message)s", stream=sys.stderr)
+    # bibtexparser logs every failed block with 0-based lines; the intake log already lists them, 1-based.
+    logging.getLogger("bibtexparser").setLevel(logging.ERROR)
 
 
 @click.group()
@@ -53,3 +55,32 @@ def intake(config_path: Path, out_dir: Path | None, verbose: int, quiet: bool) -
     click.echo(format_intake_summary(result))
     for label, path in written.items():
         click.echo(f"{label}: {path}")
+
+
+@main.command()
+@click.argument("config_path", metavar="CONFIG", type=click.Path(path_type=Path))
+@click.option("--out", "out_dir", type=click.Path(path_type=Path), default=None, help="Output folder (overrides report.output).")
+@click.option("--sentences", is_flag=True, help="Also export per-sentence scores (data/sentences.csv).")
+@click.option("-v", "--verbose", count=True, help="More detail on stderr.")
+@click.option("-q", "--quiet", is_flag=True, help="No progress bars; warnings only.")
+def build(config_path: Path, out_dir: Path | None, sentences: bool, verbose: int, quiet: bool) -> None:
+    """Run the whole job: intake, scoring, analysis, report (HTML + PDF), exports, manifest."""
+    from reporter.config import load_config
+    from reporter.pipeline import run
+    from reporter.summary import format_intake_summary
+
+    _setup_logging(verbose, quiet)
+    try:
+        config = load_config(config_path, output=out_dir)
+        result = run(config, show_progress=not quiet, keep_sentences=sentences)
+    except ReporterError as error:
+        _fail(error)
+    click.echo(format_intake_summary(result.intake))
+    stats = result.scores.stats
+    click.echo(
+        f"Scored {stats['n_records']} publications ({stats['n_sentences']} sentences, "
+        f"{stats['n_encoded']} embedded, {stats['n_cache_hits']} from the cache)."
+    )
+    click.echo(f"Written to {config.output_dir}:")
+    for label, path in result.written.items():
+        click.echo(f"  {label}: {path}")

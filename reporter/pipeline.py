@@ -26,6 +26,8 @@ def run_intake(config: Config) -> IntakeResult:
 class RunResult:
     intake: IntakeResult
     written: dict[str, Path] = field(default_factory=dict)  # label -> file written
+    scores: object = None  # score.Scores
+    findings: object = None  # analyse.Findings
 
 
 def write_intake(config: Config, intake: IntakeResult) -> dict[str, Path]:
@@ -34,3 +36,101 @@ def write_intake(config: Config, intake: IntakeResult) -> dict[str, Path]:
 
     path = write_intake_log(intake.log, config.output_dir)
     return {"intake log": path}
+
+
+def run(config: Config, show_progress: bool = True, keep_sentences: bool = False) -> RunResult:
+    """The whole job: intake, enrichment, scoring, analysis, rendering."""
+    import datetime as dt
+
+    from reporter.analyse import analyse
+    from reporter.render import RenderInputs, render
+    from reporter.score import load_scoring_parts, score
+
+    started = dt.datetime.now(dt.timezone.utc).replace(microsecond=0)
+    intake = run_intake(config)
+    # Scores are computed for every kept record of every year in one run, with one model,
+    # framework and threshold: that is what makes year-on-year changes like-for-like.
+    parts = load_scoring_parts(config.score)
+    try:
+        scores = score(
+            intake.records, parts.framework, parts.embedder, config.score, cache=parts.cache,
+            thresholds=parts.thresholds, keep_sentences=keep_sentences, show_progress=show_progress,
+        )
+    finally:
+        parts.close()
+    goals = tuple((goal.code, goal.short_title) for goal in parts.framework.goals)
+    findings = analyse(
+        intake.records, scores.table, goals, config.analysis,
+        config.report.reporting_year, config.report.comparison_years,
+        scores.thresholds, scores.policy,
+        general_mentions=scores.general_mentions.set_index("record_id")["n_general_mentions"],
+    )
+    framework_info = parts.framework_info()
+    model_info = parts.model_info()
+    score_settings = {
+        "threshold": config.score.threshold,
+        "thresholds": scores.thresholds,
+        "policy": scores.policy,
+        "text_fields": list(config.score.text_fields),
+        "method": scores.method,
+    }
+    manifest = _manifest(config, intake, scores, framework_info, model_info, score_settings, findings, started)
+    inputs = RenderInputs(
+        findings=findings, records=intake.records, scores=scores.table, intake_log=intake.log,
+        goals=goals, framework_info=framework_info, model_info=model_info,
+        score_settings=score_settings, manifest=manifest, generated_at=started.isoformat(),
+    )
+    written = render(inputs, config.report, config.output_dir)
+    return RunResult(intake=intake, written=written, scores=scores, findings=findings)
+
+
+def _manifest(config, intake, scores, framework_info, model_info, score_settings, findings, started) -> dict:
+    """What went in and how: enough to repeat the run or to tell whether two runs compare."""
+    import hashlib
+
+    from reporter import __version__
+    from reporter.render.manifest import build_manifest
+
+    per_file = intake.log.groupby("source_file").size().to_dict()
+    files = []
+    for item in config.inputs:
+        name = _relative(item.path, config.base_dir)
+        files.append({
+            "path": name,
+            "format": item.format or "",
+            "sha256": hashlib.sha256(item.path.read_bytes()).hexdigest(),
+            "n_read": int(per_file.get(name, 0)),
+        })
+    manifest = build_manifest(
+        waymark_version=__version__, generated_at=started.isoformat(), input_files=files,
+        framework_info=framework_info, model_info=model_info, score_settings=score_settings,
+        analysis_meta=findings.meta,
+    )
+    # The flat keys `analyse.check_comparable` reads to tell whether two runs compare like for like.
+    manifest.update({
+        "model_checksum": model_info["checksum"],
+        "framework_id": framework_info["id"],
+        "framework_version": framework_info["version"],
+        "framework_checksum": framework_info["checksum"],
+        "thresholds": score_settings["thresholds"],
+        "policy": score_settings["policy"],
+        "text_fields": score_settings["text_fields"],
+    })
+    counts = intake.log["status"].value_counts().to_dict()
+    manifest["config"] = config.model_dump(mode="json", exclude={"config_path"})
+    manifest["rows"] = {
+        "read": int(len(intake.log)),
+        **{status: int(counts.get(status, 0)) for status in ("kept", "merged", "set_aside")},
+        "scores": int(len(scores.table)),
+        "sentences": int(scores.stats["n_sentences"]),
+    }
+    # Cache hits and timings differ between a cold and a warm run of the same inputs; leave them out.
+    manifest["scoring_run"] = {k: scores.stats[k] for k in ("n_records", "n_sentences", "n_unique_sentences")}
+    return manifest
+
+
+def _relative(path: Path, base: Path) -> str:
+    try:
+        return path.resolve().relative_to(base.resolve()).as_posix()
+    except ValueError:
+        return str(path)

@@ -20,11 +20,20 @@ def format_intake_summary(result: IntakeResult) -> str:
         _table(("file", *_COUNT_HEADERS), _count_rows(log, log["source_file"].astype(str))),
         _table(("year", *_COUNT_HEADERS), _count_rows(log, _year_labels(log["year"]))),
     ]
-    for status, title in (("set_aside", "set aside"), ("merged", "merged")):
-        reasons = log.loc[log["status"] == status, "reason"].astype(str).map(generalise_reason)
-        if len(reasons):
-            counts = reasons.value_counts(sort=False).sort_index()
-            counts = counts.sort_values(ascending=False, kind="stable")
+    set_aside = log[log["status"] == "set_aside"]
+    merged = log[log["status"] == "merged"]
+    # A merge reason names the record kept ("duplicate of x:k1 (same DOI)"); the basis is what groups.
+    merge_reasons = [
+        str(reason).replace(str(kept), "another record") if kept else str(reason)
+        for reason, kept in zip(merged["reason"], merged["merged_into"])
+    ]
+    for title, reasons in (
+        ("set aside", [generalise_reason(str(r)) for r in set_aside["reason"]]),
+        ("merged", merge_reasons),
+    ):
+        if reasons:
+            counts = pd.Series(reasons).value_counts(sort=False).sort_index()
+            counts = counts.sort_values(ascending=False, kind="stable")  # most frequent first, ties by name
             parts.append(_table((f"{title}: reason", "records"), [(r, str(n)) for r, n in counts.items()]))
     if result.warnings:
         parts.append("warnings:\n" + "\n".join(f"  {w}" for w in result.warnings))

@@ -59,14 +59,15 @@ def analyse(
     comparison_years: tuple[int, ...],
     thresholds: dict[str, float],
     policy: str,
-    general_mentions: Mapping[str, int] | pd.Series | None = None,
+    general_mentions: Mapping[str, int] | pd.Series | pd.DataFrame | None = None,
 ) -> Findings:
     """Every figure of the report, computed once from the records and their scores.
 
     Scope: publications from the reporting and comparison years that have scores;
     every table except by_year and changes pools all those years (meta["scope"]).
-    `general_mentions` (record_id -> count of general goal-framework mentions) is
-    optional; without it headline["n_general_mentions"] is None.
+    `general_mentions` (record_id -> count of general goal-framework mentions, or the
+    score stage's record_id / n_general_mentions table) is optional; without it
+    headline["n_general_mentions"] is None.
     """
     require_columns(records, _RECORD_NEEDS, "analyse: records")
     require_columns(scores, _SCORE_NEEDS, "analyse: scores")
@@ -83,7 +84,8 @@ def analyse(
     in_scope = records[records["year"].isin(years)].copy()
     in_scope["record_id"] = in_scope["record_id"].astype(str)
     decisions = prepare_decisions(in_scope, scores, codes)
-    scored = in_scope[in_scope["record_id"].isin(set(decisions["record_id"]))]
+    scored_ids = set(decisions["record_id"].unique())
+    scored = in_scope[in_scope["record_id"].isin(scored_ids)]
     rng = np.random.default_rng(cfg.seed)
     size = cfg.min_group_size
 
@@ -130,5 +132,5 @@ def analyse(
         collaboration=collaboration,
         sensitivity=sensitivity_table(decisions, codes, thresholds, policy, cfg.sensitivity_step),
         cooccurrence=cooccurrence_table(decisions, codes),
-        coverage=coverage_summary(in_scope, set(decisions["record_id"]), len(records) - len(in_scope)),
+        coverage=coverage_summary(in_scope, scored_ids, len(records) - len(in_scope)),
     )

@@ -54,8 +54,8 @@ def count_by_group(records: pd.DataFrame, column: str) -> pd.DataFrame:
 
 def ordered_groups(groups) -> list[str]:
     """Groups sorted by name with "unassigned" last, so tables read the same in every run."""
-    distinct = sorted({str(g) for g in groups} - {UNASSIGNED})
-    return distinct + ([UNASSIGNED] if UNASSIGNED in set(map(str, groups)) else [])
+    present = {str(g) for g in pd.unique(pd.Series(groups))}
+    return sorted(present - {UNASSIGNED}) + ([UNASSIGNED] if UNASSIGNED in present else [])
 
 
 def _group_order(groups: pd.Series) -> list[int]:

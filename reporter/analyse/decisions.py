@@ -10,6 +10,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from reporter.score.scoring import decide as score_decide
+
 POLICIES = ("score_or_mention", "score_only", "mention_only")
 DECISION_COLUMNS = ("record_id", "goal", "alignment_score", "is_explicit", "is_aligned")
 
@@ -22,16 +24,12 @@ def check_policy(policy: str) -> None:
 def decide(alignment_score, is_explicit, threshold: float, policy: str) -> np.ndarray:
     """Aligned flags under a policy: score at or above the threshold, explicit mention, or either.
 
+    The score stage's own rule, so a re-decision here agrees with the stored one by construction.
     A missing score never reaches a threshold.
     """
     check_policy(policy)
-    by_score = np.nan_to_num(np.asarray(alignment_score, dtype=float), nan=-np.inf) >= threshold
-    by_mention = np.asarray(is_explicit, dtype=bool)
-    if policy == "score_only":
-        return by_score
-    if policy == "mention_only":
-        return by_mention
-    return by_score | by_mention
+    scores = np.nan_to_num(np.asarray(alignment_score, dtype=float), nan=-np.inf)
+    return np.asarray(score_decide(scores, np.asarray(is_explicit, dtype=bool), threshold, policy), dtype=bool)
 
 
 def prepare_decisions(records: pd.DataFrame, scores: pd.DataFrame, goal_codes: tuple[str, ...]) -> pd.DataFrame:
@@ -47,7 +45,7 @@ def prepare_decisions(records: pd.DataFrame, scores: pd.DataFrame, goal_codes: t
     unknown = sorted(set(table["goal"]) - set(goal_codes))
     if unknown:
         raise ValueError(f"scores name goals outside the framework: {', '.join(unknown)}")
-    ids = set(records["record_id"].astype(str))
+    ids = records["record_id"].astype(str).unique()
     table = table[table["record_id"].isin(ids)]
     if table.duplicated(["record_id", "goal"]).any():
         raise ValueError("scores hold more than one row for the same publication and goal")

@@ -3,7 +3,8 @@
 Rendering consumes it unchanged. Shares are in [0, 1]; `*_low`/`*_high` are the
 interval bounds at `meta["confidence"]`; `is_too_small` marks groups under
 `meta["min_group_size"]` publications (shown as too small, never dropped).
-Columns may be added; the ones listed are a contract with `render`.
+Columns may be added; the ones listed are a contract with `render`. Every key and
+column, added ones included, is described in FINDINGS_SCHEMA.md beside this file.
 """
 
 from __future__ import annotations
@@ -36,3 +37,8 @@ class Findings:
     coverage: dict  # n_records, n_with_abstract, share_with_abstract, n_with_department,
     #                 share_with_department, n_with_country, share_with_country, n_non_english
     extra: dict = field(default_factory=dict)  # later sections (validation, corrected shares, overrides)
+    # Added by analyse (see FINDINGS_SCHEMA.md): share tables also carry n_publications, n_effective,
+    # n_explicit, n_content_only; by_department/by_country carry is_unassigned; changes carry
+    # baseline_kind, n_baseline, n_aligned_baseline, n, n_aligned; sensitivity carries n;
+    # meta adds scope, methods; headline adds n_aligned_multiple; coverage adds n_scored,
+    # n_not_scored, n_outside_years.

@@ -110,34 +110,48 @@ def bootstrap_mean_interval(
     n_resamples: int,
     confidence: float = 0.95,
     batch: int | None = None,
-) -> tuple[float, float]:
+):
     """Percentile bootstrap interval for the mean; returns (low, high).
 
-    Percentile, not BCa: BCa's jackknife needs an n x n array per call, too heavy for a
-    whole corpus, and the shares (the headline figures) do not use the bootstrap.
+    `values` is 1-D, or 2-D with one series per row (e.g. one goal per row): every row is
+    resampled with the same indices, so one pass serves all goals; bounds are then arrays.
+    Percentile, not BCa: BCa's jackknife is quadratic in n, too heavy for a whole corpus.
     Resamples are drawn as `rng.integers(0, n, (batch, n))` in batches of `batch` rows,
     exactly as scipy.stats.bootstrap(method="percentile", batch=batch) draws them, so both
     give the same interval for the same data and Generator state. `batch=None` picks a
     batch that bounds memory (all resamples at once for small n, like scipy's default).
-    Empty input gives nan bounds.
+    No values gives nan bounds.
     """
     data = np.asarray(values, dtype=float)
-    if data.ndim != 1:
-        raise ValueError(f"values must be one-dimensional, got shape {data.shape}")
+    if data.ndim not in (1, 2):
+        raise ValueError(f"values must be one- or two-dimensional, got shape {data.shape}")
     if np.isnan(data).any():
         raise ValueError("values contain nan; drop missing scores before bootstrapping")
-    n = data.size
+    series = data[None, :] if data.ndim == 1 else data
+    n = series.shape[1]
     if n == 0:
-        return math.nan, math.nan
+        low = high = np.full(series.shape[0], np.nan)
+    else:
+        means = _resample_means(series, rng, n_resamples, batch)
+        alpha = (1 - confidence) / 2
+        low, high = np.quantile(means, [alpha, 1 - alpha], axis=0)
+    if data.ndim == 1:
+        return float(low[0]), float(high[0])
+    return low, high
+
+
+def _resample_means(series: np.ndarray, rng: np.random.Generator, n_resamples: int, batch: int | None) -> np.ndarray:
+    n = series.shape[1]
     if batch is None:
         batch = max(1, min(n_resamples, _MAX_BATCH_CELLS // n))
-    means = np.empty(n_resamples)
+    means = np.empty((n_resamples, series.shape[0]))
     done = 0
     while done < n_resamples:
         rows = min(batch, n_resamples - done)
         index = rng.integers(0, n, (rows, n))
-        means[done : done + rows] = data[index].mean(axis=-1)
+        # How often each observation is drawn in each resample; times the data gives the means.
+        offsets = (np.arange(rows)[:, None] * n + index).ravel()
+        counts = np.bincount(offsets, minlength=rows * n).reshape(rows, n)
+        means[done : done + rows] = counts @ series.T / n
         done += rows
-    alpha = (1 - confidence) / 2
-    low, high = np.quantile(means, [alpha, 1 - alpha])
-    return float(low), float(high)
+    return means

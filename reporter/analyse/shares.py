@@ -73,15 +73,24 @@ def goal_summary(
     everyone = pd.DataFrame({"record_id": ids, "group": "all", "weight": 1.0})
     table = group_shares(everyone, decisions, codes, ["all"], confidence).drop(columns=["group"])
     table.insert(1, "title", [title for _, title in goals])
-    means, lows, highs = [], [], []
+    matrix = decisions.pivot(index="record_id", columns="goal", values="alignment_score")
+    matrix = matrix.reindex(columns=list(codes))
+    complete = [code for code in codes if matrix[code].notna().all()]
+    # One pass resamples publications for all fully scored goals at once (same draws for each);
+    # a goal with missing scores is bootstrapped alone on its scores, after them in framework order.
+    intervals = {}
+    if complete:
+        lows, highs = bootstrap_mean_interval(matrix[complete].to_numpy().T, rng, n_resamples, confidence)
+        intervals.update({code: (lo, hi) for code, lo, hi in zip(complete, lows, highs)})
     for code in codes:
-        # Goals are visited in framework order, so the shared Generator gives the same draws every run.
-        scores = decisions.loc[decisions["goal"] == code, "alignment_score"].dropna().to_numpy()
-        means.append(float(scores.mean()) if scores.size else np.nan)
-        low, high = bootstrap_mean_interval(scores, rng, n_resamples, confidence)
-        lows.append(low)
-        highs.append(high)
-    return table.assign(mean_score=means, mean_score_low=lows, mean_score_high=highs)
+        if code not in intervals:
+            values = matrix[code].dropna().to_numpy()
+            intervals[code] = bootstrap_mean_interval(values, rng, n_resamples, confidence)
+    return table.assign(
+        mean_score=[float(matrix[code].mean()) for code in codes],
+        mean_score_low=[float(intervals[code][0]) for code in codes],
+        mean_score_high=[float(intervals[code][1]) for code in codes],
+    )
 
 
 def year_shares(records, decisions, goal_codes, years, confidence, min_group_size) -> pd.DataFrame:
@@ -100,12 +109,17 @@ def department_shares(records, decisions, goal_codes, counting, confidence, min_
 
 
 def country_shares(records, decisions, goal_codes, counting, confidence, min_group_size) -> pd.DataFrame:
-    """Shares by partner country (ISO 3166-1 alpha-2); no partner country -> "unassigned"."""
+    """Shares by partner country (ISO 3166-1 alpha-2), partner countries only.
+
+    Publications without a partner country are the "domestic" group of the collaboration
+    table, so the "unassigned" group is left out here; under fractional counting the
+    weights of this table sum to the number of international publications.
+    """
     members = group_memberships(records, "partner_countries", counting)
+    members = members[members["group"] != UNASSIGNED]
     table = group_shares(members, decisions, goal_codes, ordered_groups(members["group"]), confidence)
     table = table.rename(columns={"group": "country"})
     table.insert(1, "country_name", table["country"].map(country_name))
-    table.insert(2, "is_unassigned", table["country"] == UNASSIGNED)
     return mark_too_small(table, min_group_size)
 
 
@@ -122,8 +136,6 @@ def collaboration_shares(records, decisions, goal_codes, confidence, min_group_s
 
 def country_name(code: str) -> str:
     """Common English name from ISO 3166-1 via pycountry; the code itself when unknown."""
-    if code == UNASSIGNED:
-        return "no partner country"
     country = pycountry.countries.get(alpha_2=str(code).upper())
     if country is None:
         return str(code)

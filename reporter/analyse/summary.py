@@ -48,7 +48,7 @@ def headline_summary(
     decisions: pd.DataFrame,
     goal_codes: tuple[str, ...],
     confidence: float,
-    general_mentions: Mapping[str, int] | pd.Series | None,
+    general_mentions: Mapping[str, int] | pd.Series | pd.DataFrame | None,
     n_too_small_groups: int,
 ) -> dict:
     """Publications analysed, aligned with any goal (Wilson interval), explicit, multi-goal."""
@@ -60,6 +60,8 @@ def headline_summary(
     if general_mentions is None:
         n_general = None  # not measured, which is not the same as none found
     else:
+        if isinstance(general_mentions, pd.DataFrame):  # the score stage's (record_id, n_general_mentions)
+            general_mentions = general_mentions.set_index("record_id")["n_general_mentions"]
         counts = pd.Series(general_mentions, dtype=float)
         counts.index = counts.index.astype(str)
         n_general = int((counts.reindex(aligned.index).fillna(0) > 0).sum())

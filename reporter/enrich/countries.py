@@ -3,6 +3,8 @@
 `countries_in(affiliation)` gives one code per affiliation segment (segments split on ";",
 "|" and line breaks): the last country mentioned, since addresses end with the country.
 `add_countries(records, home_country)` fills countries, partner_countries, is_international.
+Known limit: a US state named like a country with no country after it ("Athens, Georgia")
+gives that country; exports almost always end US addresses with "USA".
 """
 
 from __future__ import annotations
@@ -20,11 +22,10 @@ import pycountry
 #: abbreviated forms Web of Science writes, from memory). "" marks a place name that holds
 #: a country's name but is not that country; it is consumed so the shorter name cannot match.
 VARIANTS: Mapping[str, str] = MappingProxyType({
-    "usa": "US", "united states of america": "US", "united states": "US", "america usa": "US",
+    "usa": "US", "united states of america": "US", "united states": "US",
     "uk": "GB", "england": "GB", "scotland": "GB", "wales": "GB", "northern ireland": "GB",
     "north ireland": "GB", "great britain": "GB", "britain": "GB",
-    "pr china": "CN", "p r china": "CN", "peoples r china": "CN", "people s republic of china": "CN",
-    "mainland china": "CN",
+    "pr china": "CN", "peoples r china": "CN", "mainland china": "CN",
     "korea": "KR", "south korea": "KR", "republic of korea": "KR", "korea south": "KR",
     "korea republic": "KR", "north korea": "KP", "korea north": "KP",
     "vietnam": "VN", "viet nam": "VN", "russia": "RU", "iran": "IR", "czech republic": "CZ",

@@ -52,7 +52,8 @@ def dedupe(records: pd.DataFrame) -> tuple[pd.DataFrame, dict[str, tuple[str, st
         for i in others:
             dropped.add(i)
             basis = _basis(rows[i], rows[kept])
-            merged[rows[i]["record_id"]] = (combined["record_id"], f"duplicate of {combined['record_id']} ({basis})")
+            kept_id = combined["record_id"]
+            merged[rows[i]["record_id"]] = (kept_id, f"duplicate of {kept_id} ({basis})")
     out_rows = [keep_rows.get(i, row) for i, row in enumerate(rows) if i not in dropped]
     out = pd.DataFrame(out_rows, columns=records.columns)
     return out.astype(records.dtypes.to_dict(), errors="ignore"), merged

@@ -107,36 +107,48 @@ def _salvage(
     kept: list[Block] = []
     rejected: list[Rejected] = []
     notes: dict[str, tuple[str, ...]] = {}
-    taken = {b.key for b in blocks if isinstance(b, Entry)}
+    taken = {entry.key for entry in map(_entry_of, blocks) if entry is not None}
+    seen: set[str] = set()
     for block in blocks:
         line = (block.start_line or 0) + 1
-        if isinstance(block, DuplicateBlockKeyBlock):
-            duplicate = block.ignore_error_block
-            if isinstance(duplicate, Entry):
-                # Both entries stay: they may be different works that share a key by mistake;
-                # enrich's duplicate detection merges them if they are the same work.
-                duplicate.key = _free_key(block.key, taken)
-                notes[block.key] = ("duplicate_key",)
-                notes[duplicate.key] = ("duplicate_key",)
-                kept.append(duplicate)
-            elif isinstance(duplicate, String):
+        entry = _entry_of(block)
+        if entry is None:
+            if isinstance(block, DuplicateBlockKeyBlock) and isinstance(block.ignore_error_block, String):
                 warnings.append(f"line {line}: @string {block.key} is defined again; the first definition is used")
-        elif isinstance(block, DuplicateFieldKeyBlock):
-            entry = block.ignore_error_block
-            if isinstance(entry, Entry):
-                # BibTeX itself keeps the first value of a repeated field and ignores the rest.
-                first: dict[str, object] = {}
-                for field in entry.fields:
-                    first.setdefault(field.key, field)
-                entry.fields = list(first.values())  # type: ignore[arg-type]
-                names = ",".join(sorted(block.duplicate_keys))
-                notes[entry.key] = (*notes.get(entry.key, ()), f"repeated_field:{names}")
-                kept.append(entry)
-        elif isinstance(block, ParsingFailedBlock):
-            rejected.append(Rejected(source_name, line, _key_of(block.raw), _failure(block, line, text)))
-        else:
-            kept.append(block)
+            elif isinstance(block, ParsingFailedBlock):
+                rejected.append(Rejected(source_name, line, _key_of(block.raw), _failure(block, line, text)))
+            else:
+                kept.append(block)  # strings, comments, preambles: needed by or ignored in decoding
+            continue
+        entry_notes: list[str] = []
+        if isinstance(block, DuplicateFieldKeyBlock):
+            # BibTeX itself keeps the first value of a repeated field and ignores the rest.
+            first: dict[str, object] = {}
+            for field in entry.fields:
+                first.setdefault(field.key, field)
+            entry.fields = list(first.values())  # type: ignore[arg-type]
+            entry_notes.append("repeated_field:" + ",".join(sorted(block.duplicate_keys)))
+        if entry.key and entry.key in seen:
+            # Both entries stay: they may be different works that share a key by mistake;
+            # enrich's duplicate detection merges them if they are the same work.
+            _add_note(notes, entry.key, "duplicate_key")
+            entry.key = _free_key(entry.key, taken)
+            entry_notes.append("duplicate_key")
+        for note in entry_notes:
+            _add_note(notes, entry.key, note)
+        seen.add(entry.key)
+        kept.append(entry)
     return kept, rejected, notes
+
+
+def _entry_of(block: Block) -> Entry | None:
+    """The entry in a block: itself, or the one behind a duplicate key or repeated field."""
+    if isinstance(block, Entry):
+        return block
+    if isinstance(block, (DuplicateBlockKeyBlock, DuplicateFieldKeyBlock)):
+        inner = block.ignore_error_block
+        return inner if isinstance(inner, Entry) else None
+    return None
 
 
 def _failure(block: ParsingFailedBlock, line: int, text: str) -> str:
@@ -150,6 +162,11 @@ def _failure(block: ParsingFailedBlock, line: int, text: str) -> str:
         if end_line > line:
             where = f" (noticed at line {end_line})"
     return f"unparseable entry at line {line}: {' '.join(why.split())}{where}"
+
+
+def _add_note(notes: dict[str, tuple[str, ...]], key: str, note: str) -> None:
+    if note not in notes.get(key, ()):
+        notes[key] = (*notes.get(key, ()), note)
 
 
 def _free_key(key: str, taken: set[str]) -> str:

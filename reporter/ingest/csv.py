@@ -44,6 +44,9 @@ _GUESSES: dict[str, tuple[str, ...]] = {
 
 def read_csv(path: Path, source_name: str, cfg: InputConfig, max_field_length: int) -> ReadResult:
     """Read one CSV file. Raises InputError when a configured column header is not in the file."""
+    if cfg.delimiter is not None and len(cfg.delimiter) != 1:
+        message = f"expected one character such as \",\", \";\" or \"\\t\", got {cfg.delimiter!r}"
+        raise InputError(Problem(path, None, "delimiter", message))
     decoded = decode_bytes(path.read_bytes(), cfg.encoding)
     warnings = list(decoded.warnings)
     text = decoded.text

@@ -6,6 +6,7 @@ Nothing is written here. A missing or unreadable file raises InputError naming i
 
 from __future__ import annotations
 
+import codecs
 import re
 from collections.abc import Iterable
 from pathlib import Path, PurePosixPath
@@ -40,6 +41,12 @@ def _read_input(index: int, cfg: InputConfig, max_field_length: int, base_dir: P
         raise InputError(Problem(path, None, key, "file not found"))
     if not path.is_file():
         raise InputError(Problem(path, None, key, "not a file (a folder?); give the path of an export file"))
+    if cfg.encoding:
+        try:
+            codecs.lookup(cfg.encoding)
+        except LookupError:
+            message = f"unknown encoding {cfg.encoding!r}; try \"utf-8\", \"utf-16\" or \"cp1252\""
+            raise InputError(Problem(path, None, f"inputs[{index}].encoding", message)) from None
     try:
         fmt = cfg.format or guess_format(path, cfg.encoding)
         if fmt is None:
@@ -93,18 +100,22 @@ def build_intake(results: Iterable[ReadResult], years: tuple[int, ...]) -> Intak
             if isinstance(item, Rejected):
                 native_id = item.native_id or f"line{item.source_line}"
                 record_id = _unique_id(f"{stem}:{native_id}", taken)
-                log_rows.append(_log_row(record_id, item.source_file, item.source_line, result.format,
-                                         native_id, "", None, "set_aside", item.reason, ""))
+                log_rows.append(
+                    _log_row(record_id, item, result.format, native_id=native_id, status="set_aside", reason=item.reason)
+                )
                 continue
             record_id = _unique_id(f"{stem}:{item.native_id}", taken)
             title = str(item.fields.get("title", ""))
             year = parse_year(item.fields.get("year"))
             reason = _set_aside_reason(title, year, years)
+            status = "set_aside" if reason else "kept"
             flags = "" if reason else ";".join(_flags(item))
-            log_rows.append(_log_row(record_id, item.source_file, item.source_line, item.format,
-                                     item.native_id, title, year, "set_aside" if reason else "kept", reason, flags))
-            if not reason:
-                record_rows.append(_record_row(record_id, item, year))  # type: ignore[arg-type]
+            log_rows.append(
+                _log_row(record_id, item, item.format, native_id=item.native_id, title=title, year=year,
+                         status=status, reason=reason, flags=flags)
+            )
+            if year is not None and not reason:
+                record_rows.append(_record_row(record_id, item, year))
     return IntakeResult(records=_records_frame(record_rows), log=_log_frame(log_rows), warnings=tuple(warnings))
 
 
@@ -134,13 +145,12 @@ def _unique_id(candidate: str, taken: set[str]) -> str:
     return record_id
 
 
-def _log_row(record_id: str, source_file: str, line: int | None, fmt: str, native_id: str, title: str,
-             year: int | None, status: str, reason: str, flags: str) -> dict[str, object]:
-    return {
-        "record_id": record_id, "source_file": source_file, "source_line": line, "format": fmt,
-        "native_id": native_id, "title": title, "year": year, "status": status, "reason": reason,
-        "merged_into": "", "flags": flags,
-    }
+def _log_row(record_id: str, item: RawEntry | Rejected, fmt: str, **values: object) -> dict[str, object]:
+    """A log row; text columns not given are "" (merged_into is filled in by enrich)."""
+    row: dict[str, object] = dict.fromkeys(INTAKE_LOG_COLUMNS, "")
+    row.update(record_id=record_id, source_file=item.source_file, source_line=item.source_line, format=fmt, year=None)
+    row.update(values)
+    return row
 
 
 def _record_row(record_id: str, entry: RawEntry, year: int) -> dict[str, object]:

@@ -38,7 +38,8 @@ def decode_bytes(data: bytes, encoding: str | None = None) -> DecodedText:
     warnings: list[str] = []
     text, used = _decode(data, encoding, warnings)
     if _looks_binary(text):
-        return DecodedText("", "", (*warnings, "file does not look like text (binary content); nothing read"))
+        # Encoding notes about bytes that are not text would only distract from this one.
+        return DecodedText("", "", ("file does not look like text (binary content); nothing read",))
     return DecodedText(normalise_newlines(text), used, tuple(warnings))
 
 

@@ -8,11 +8,13 @@ from __future__ import annotations
 
 from typing import Any, Sequence
 
+import re
+
 import altair as alt
 import pandas as pd
 from markupsafe import Markup
 
-from reporter.render.context import Cell, Chart, GoalRow, GroupRow
+from reporter.render.context import Chart, GoalRow, GroupRow
 from reporter.render.filters import fmt_share
 from reporter.render.themes import Theme
 
@@ -20,7 +22,19 @@ WIDTH = 560  # px; fits the A4 text block (170 mm) with axis labels beside it
 _FORBIDDEN_SVG = ("<script", "<foreignobject", "javascript:", "href=\"http", "href='http")
 
 
-def _to_svg(chart: alt.TopLevelMixin, theme: Theme, alt_text: str) -> Chart:
+def _local_ids(svg: str, prefix: str) -> str:
+    """Rename the SVG's ids (vl-convert numbers gradients and clip paths per process) to chart-local ones.
+
+    Keeps the HTML identical from run to run and the ids unique when several SVGs share one page.
+    """
+    ids = list(dict.fromkeys(re.findall(r'\bid="([^"]+)"', svg)))
+    for number, old in enumerate(ids):
+        new = f"{prefix}-{number}"
+        svg = re.sub(rf'(\bid="|url\(#|href="#){re.escape(old)}(?=[")])', rf"\g<1>{new}", svg)
+    return svg
+
+
+def _to_svg(chart: alt.TopLevelMixin, theme: Theme, alt_text: str, name: str) -> Chart:
     import vl_convert  # heavy; imported when a chart is actually drawn
 
     pal = theme.palette
@@ -38,7 +52,7 @@ def _to_svg(chart: alt.TopLevelMixin, theme: Theme, alt_text: str) -> Chart:
     )
     spec.pop("$schema", None)  # a URL only; vl-convert bundles its own schema
     spec["description"] = alt_text
-    svg = vl_convert.vegalite_to_svg(spec)
+    svg = _local_ids(vl_convert.vegalite_to_svg(spec), f"chart-{name}")
     lowered = svg.lower()
     # vl-convert escapes data values; this guards against a spec change that would embed active content.
     bad = [token for token in _FORBIDDEN_SVG if token in lowered]
@@ -68,7 +82,7 @@ def draw_goal_profile(rows: Sequence[GoalRow], theme: Theme) -> Chart:
         parts.append({"goal": label, "part": "content only", "order": 1, "share": r.n_content_only / n})
         bounds.append({"goal": label, "low": r.share_low, "high": r.share_high})
     cat = theme.palette["categorical"]
-    y = alt.Y("goal:N", sort=order, title=None, axis=alt.Axis(labelLimit=260))
+    y = alt.Y("goal:N", sort=order, title=None, axis=alt.Axis(labelLimit=230))
     bars = alt.Chart(pd.DataFrame(parts)).mark_bar(height=11).encode(
         y=y,
         x=alt.X("sum(share):Q", title="share of publications", axis=alt.Axis(format="%")),
@@ -78,17 +92,18 @@ def draw_goal_profile(rows: Sequence[GoalRow], theme: Theme) -> Chart:
         ),
         order=alt.Order("order:Q"),
     )
-    rules = alt.Chart(pd.DataFrame(bounds)).mark_rule(color=theme.palette["ink"], strokeWidth=1.2).encode(
-        y=y, x="low:Q", x2="high:Q"
+    rules = alt.Chart(pd.DataFrame(bounds)).mark_errorbar(ticks=alt.TickConfig(size=7), color=theme.palette["ink"],
+                                                          thickness=1.1).encode(
+        y=y, x=alt.X("low:Q", title="share of publications"), x2="high:Q"
     )
-    chart = alt.layer(bars, rules).properties(width=WIDTH - 260, height=alt.Step(16))
+    chart = alt.layer(bars, rules).properties(width=WIDTH - 200, height=alt.Step(17))
     top = max(rows, key=lambda r: r.share, default=None)
     alt_text = (
         f"Bar chart of the share of publications aligned with each of {len(rows)} goals, "
         f"split into explicit mentions and content alone, with interval bars."
         + (f" Largest: goal {top.goal} at {fmt_share(top.share)}." if top is not None else "")
     )
-    return _to_svg(chart, theme, alt_text)
+    return _to_svg(chart, theme, alt_text, "goal-profile")
 
 
 def draw_change(by_year: pd.DataFrame, goals: Sequence[tuple[str, str]], theme: Theme) -> Chart:
@@ -111,7 +126,7 @@ def draw_change(by_year: pd.DataFrame, goals: Sequence[tuple[str, str]], theme: 
             legend=alt.Legend(orient="bottom", title=None),
         ),
     )
-    chart = alt.layer(band, line, points, data=data).properties(width=70, height=55).facet(
+    chart = alt.layer(band, line, points, data=data).properties(width=78, height=60).facet(
         facet=alt.Facet("label:N", sort=[labels[c] for c, _ in goals], title=None,
                         header=alt.Header(labelLimit=95, labelFontSize=8)),
         columns=6,
@@ -121,7 +136,7 @@ def draw_change(by_year: pd.DataFrame, goals: Sequence[tuple[str, str]], theme: 
         f"Small multiples, one per goal: goal share per year from {years[0]} to {years[-1]} "
         "as a line inside its interval band; crosses mark years with too few publications."
     )
-    return _to_svg(chart, theme, alt_text)
+    return _to_svg(chart, theme, alt_text, "change")
 
 
 def _cells_frame(rows: Sequence[GroupRow], value: str) -> pd.DataFrame:
@@ -134,7 +149,7 @@ def _cells_frame(rows: Sequence[GroupRow], value: str) -> pd.DataFrame:
 
 
 def draw_group_heatmap(
-    rows: Sequence[GroupRow], goals: Sequence[tuple[str, str]], theme: Theme, *, what: str,
+    rows: Sequence[GroupRow], goals: Sequence[tuple[str, str]], theme: Theme, *, what: str, name: str,
     min_group_size: int, value: str = "share",
 ) -> Chart:
     """Group x goal heat map; cells of too-small groups are grey and labelled "n<k" instead of coloured."""
@@ -144,14 +159,16 @@ def draw_group_heatmap(
     x = alt.X("goal:N", sort=goal_order, title="goal", axis=alt.Axis(labelAngle=0, orient="top"))
     y = alt.Y("group:N", sort=group_order, title=None, axis=alt.Axis(labelLimit=180))
     fmt = "%" if value == "share" else "d"
+    steps = {} if value == "share" else {"tickMinStep": 1}  # whole publications only
     shown = data.loc[~data["too_small"]]
     small = data.loc[data["too_small"]].assign(mark=f"n<{min_group_size}")
     pal = theme.palette
     coloured = alt.Chart(shown).mark_rect(stroke=pal["paper"], strokeWidth=1).encode(
         x=x, y=y,
         color=alt.Color("value:Q", scale=alt.Scale(range=pal["sequential"], zero=True),
-                        legend=alt.Legend(title="share" if value == "share" else "publications", format=fmt,
-                                          orient="right", gradientLength=120)),
+                        legend=alt.Legend(title="share" if value == "share" else "aligned publications",
+                                          format=fmt, orient="bottom", direction="horizontal", gradientLength=160,
+                                          **steps)),
     )
     grey = alt.Chart(small).mark_rect(color=pal["too_small"], stroke=pal["paper"], strokeWidth=1).encode(x=x, y=y)
     label = alt.Chart(small).mark_text(fontSize=7, color=pal["muted"]).encode(x=x, y=y, text="mark:N")
@@ -160,10 +177,10 @@ def draw_group_heatmap(
     alt_text = (
         f"Heat map of {len(rows)} {what} by {len(goal_order)} goals; darker cells mean a larger "
         f"{'share' if value == 'share' else 'number of aligned publications'}."
-        + (f" {n_small} {what} with fewer than {min_group_size} publications are grey and marked n<{min_group_size}."
-           if n_small else "")
+        + (f" Groups with fewer than {min_group_size} publications ({n_small} of {len(rows)}) are grey and "
+           f"marked n<{min_group_size}." if n_small else "")
     )
-    return _to_svg(chart, theme, alt_text)
+    return _to_svg(chart, theme, alt_text, name)
 
 
 def draw_collaboration(rows: Sequence[GroupRow], goals: Sequence[tuple[str, str]], theme: Theme) -> Chart:
@@ -188,7 +205,7 @@ def draw_collaboration(rows: Sequence[GroupRow], goals: Sequence[tuple[str, str]
     chart = alt.layer(bars, rules).properties(width=WIDTH, height=170)
     alt_text = (f"Grouped bars: goal shares for {' and '.join(domain).lower()} publications, "
                 "one pair per goal, with interval bars.")
-    return _to_svg(chart, theme, alt_text)
+    return _to_svg(chart, theme, alt_text, "collaboration")
 
 
 def draw_cooccurrence(pairs: pd.DataFrame, goals: Sequence[tuple[str, str]], theme: Theme) -> Chart:
@@ -200,12 +217,11 @@ def draw_cooccurrence(pairs: pd.DataFrame, goals: Sequence[tuple[str, str]], the
         x=alt.X("goal_a:N", sort=goal_order, title="goal", axis=alt.Axis(labelAngle=0, orient="top")),
         y=alt.Y("goal_b:N", sort=goal_order, title="goal"),
         color=alt.Color("n:Q", scale=alt.Scale(range=pal["sequential"], zero=True),
-                        legend=alt.Legend(title="publications", orient="right", gradientLength=120)),
+                        legend=alt.Legend(title="publications aligned with both", orient="bottom",
+                                          direction="horizontal", gradientLength=160, tickMinStep=1)),
     ).properties(width=alt.Step(22), height=alt.Step(22))
     alt_text = ("Heat map of goal pairs: darker cells mean more publications aligned with both goals; "
                 "the most frequent pairs are listed beside it.")
-    return _to_svg(chart, theme, alt_text)
+    return _to_svg(chart, theme, alt_text, "together")
 
 
-__all__ = ["draw_goal_profile", "draw_change", "draw_group_heatmap", "draw_collaboration", "draw_cooccurrence",
-           "Cell"]

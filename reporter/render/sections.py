@@ -165,7 +165,8 @@ def _departments(frame: pd.DataFrame, goals, theme: Theme, min_size: int) -> Dep
     rows = _group_rows(frame.assign(label=frame["department"]), "department", "label", goals)
     chart = None
     if rows:
-        chart = charts.draw_group_heatmap(rows, goals, theme, what="departments", min_group_size=min_size)
+        chart = charts.draw_group_heatmap(rows, goals, theme, what="departments", name="departments",
+                                           min_group_size=min_size)
     return DepartmentSection(rows=rows, chart=chart, n_too_small=sum(r.is_too_small for r in rows),
                              min_group_size=min_size)
 
@@ -182,7 +183,7 @@ def _partners(countries: pd.DataFrame, collaboration: pd.DataFrame, goals, theme
         countries=shown,
         n_countries=len(all_countries),
         collaboration_chart=charts.draw_collaboration(collab, goals, theme) if collab else None,
-        country_chart=(charts.draw_group_heatmap(shown, goals, theme, what="partner countries",
+        country_chart=(charts.draw_group_heatmap(shown, goals, theme, what="partner countries", name="countries",
                                                  min_group_size=min_size, value="n_aligned") if shown else None),
     )
 

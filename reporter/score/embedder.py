@@ -69,6 +69,12 @@ class ModelInfo:
     backend: str
 
 
+def _dimension(model) -> int:
+    # sentence-transformers renamed the method in v6; accept both.
+    getter = getattr(model, "get_embedding_dimension", None) or model.get_sentence_embedding_dimension
+    return int(getter())
+
+
 class SentenceEmbedder:
     """Wraps a sentence-transformers model: normalised float32 embeddings, token counting."""
 
@@ -89,7 +95,7 @@ class SentenceEmbedder:
             id=model_id,
             path=str(folder),
             checksum=model_checksum(folder),
-            dimension=int(self._model.get_sentence_embedding_dimension()),
+            dimension=_dimension(self._model),
             # Two places go to the [CLS] and [SEP] markers.
             max_tokens=int(self._model.max_seq_length) - 2,
             backend="embedding",

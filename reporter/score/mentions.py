@@ -58,7 +58,7 @@ _GENERAL = re.compile(
 _SDG_CONTEXT = rf"{_SDG_WORD}|\bSustainable\s+Development\b|\b2030\s+Agenda\b|\bAgenda\s+2030\b|\bGlobal\s+Goals\b"
 _QUOTES_OPEN, _QUOTES_CLOSE = "\"'\u201c\u2018\u00ab", "\"'\u201d\u2019\u00bb"
 _SMALL_WORDS = {"and", "&", "of", "on", "the", "for", "in", "to", "a", "an"}
-# Mentions of one goal this close together are one mention: "SDG 13 (Climate Action)".
+# What may separate a number from its title or ordinal in one mention: "SDG 13 (Climate Action)".
 _JOIN_GAP = re.compile(r"[\s()\[\]:;,\-\u2013\u2014\"'\u201c\u201d]{0,4}")
 _FORM_RANK = ("sdg_number", "sdg_target", "ordinal", "goal_number", "target_number", "title")
 
@@ -129,7 +129,7 @@ def find_mentions(text: str, framework: GoalFramework | MentionPatterns) -> Ment
     )
     merged = _merge(text, found)
     by_goal = {code: tuple(m for m in merged if m.goal == code) for code in patterns.goal_codes}
-    by_goal = {code: found for code, found in by_goal.items() if found}
+    by_goal = {code: hits for code, hits in by_goal.items() if hits}
     return MentionResult(by_goal=MappingProxyType(by_goal), n_general=n_general)
 
 

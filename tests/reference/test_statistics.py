@@ -85,3 +85,16 @@ def test_bootstrap_mean_interval_matches_scipy(batch):
         rng=np.random.default_rng(2025), batch=batch, vectorized=True,
     ).confidence_interval
     assert ours == pytest.approx((theirs.low, theirs.high), abs=1e-12)
+
+
+def test_bootstrap_of_several_series_matches_scipy():
+    """Source: scipy.stats.bootstrap(method="percentile") on a 2-D sample (one goal per row, axis=-1),
+    which resamples every row with the same indices, as ours does."""
+    data = np.random.default_rng(12).beta(2, 5, size=(4, 45))
+    low, high = bootstrap_mean_interval(data, np.random.default_rng(99), 500, 0.9)
+    theirs = bootstrap(
+        (data,), np.mean, n_resamples=500, confidence_level=0.9, method="percentile",
+        rng=np.random.default_rng(99), axis=-1, vectorized=True,
+    ).confidence_interval
+    np.testing.assert_allclose(low, theirs.low, atol=1e-12)
+    np.testing.assert_allclose(high, theirs.high, atol=1e-12)

@@ -77,13 +77,13 @@ def test_fractional_department_counts_sum_to_the_publications(inputs, goals):
     assert (full >= per_goal).all()
 
 
-def test_partner_countries_get_iso_names_and_unassigned(inputs, goals):
+def test_partner_countries_get_iso_names(inputs, goals):
     table = _run(*inputs, goals).by_country
     names = dict(zip(table["country"], table["country_name"]))
-    assert names == {"DE": "Germany", "KR": "South Korea", "unassigned": "no partner country"}, (
-        "Source: ISO 3166-1 via pycountry (common name where it has one)"
+    assert names == {"DE": "Germany", "KR": "South Korea"}, (
+        "Source: ISO 3166-1 via pycountry (common name where it has one); partner countries only"
     )
-    assert table.loc[table["country"] == "unassigned", "is_unassigned"].all()
+    assert list(table.loc[table["goal"] == "1", "n"]) == [2, 1], "DE on a and b, KR on b"
 
 
 def test_headline_and_coverage(inputs, goals):
@@ -92,7 +92,7 @@ def test_headline_and_coverage(inputs, goals):
     assert headline["n_publications"] == 5 and headline["n_aligned_any"] == 4
     assert headline["n_explicit_any"] == 2 and headline["n_aligned_multiple"] == 1
     assert headline["n_general_mentions"] == 2, "a and e; the 2019 record is out of scope"
-    assert headline["n_too_small_groups"] == 2 + 3 + 3 + 2, "years, departments, countries, collaboration: all under 10"
+    assert headline["n_too_small_groups"] == 2 + 3 + 2 + 2, "years, departments, countries, collaboration: all under 10"
     assert coverage["n_records"] == 5 and coverage["n_non_english"] == 1
     assert coverage["n_with_abstract"] == 4 and coverage["n_with_department"] == 4
 
@@ -142,3 +142,8 @@ def test_every_column_and_key_is_documented(inputs, goals):
     names |= set(findings.meta) | set(findings.headline) | set(findings.coverage) | set(findings.meta["methods"])
     undocumented = sorted(n for n in names if f"`{n}`" not in schema)
     assert not undocumented, f"FINDINGS_SCHEMA.md lacks {undocumented}"
+
+
+def test_general_mentions_from_the_score_stage_table(inputs, goals):
+    table = pd.DataFrame({"record_id": ["a", "b", "e"], "n_general_mentions": [1, 0, 3]})
+    assert _run(*inputs, goals, general_mentions=table).headline["n_general_mentions"] == 2

@@ -1,6 +1,6 @@
 import pytest
 
-from enrich_frames import record, records
+from tests.unit.enrich.enrich_frames import record, records
 from reporter.enrich.countries import add_countries, countries_in
 
 

@@ -1,4 +1,4 @@
-from enrich_frames import record, records
+from tests.unit.enrich.enrich_frames import record, records
 from reporter.enrich.dedupe import dedupe, normalise_title
 
 

@@ -1,6 +1,6 @@
 import pytest
 
-from enrich_frames import record, records
+from tests.unit.enrich.enrich_frames import record, records
 from reporter.enrich.departments import add_departments, apply_aliases, compatible, match_author
 from reporter.enrich.staff_map import read_staff_map
 

@@ -1,6 +1,6 @@
 import pytest
 
-from enrich_frames import record, records
+from tests.unit.enrich.enrich_frames import record, records
 from reporter.enrich.doi import normalise_doi, normalise_dois
 
 

@@ -1,7 +1,7 @@
 import pandas as pd
 import pytest
 
-from enrich_frames import log_for, record, records
+from tests.unit.enrich.enrich_frames import log_for, record, records
 from reporter.config import DepartmentConfig, ReportConfig
 from reporter.enrich import enrich
 from reporter.errors import InputError
@@ -65,7 +65,8 @@ def test_counts_reconcile_after_dedupe(departments):
     counts = result.log["status"].value_counts()
     assert len(result.log) == 5
     assert counts["kept"] == len(result.records), "kept log rows are exactly the records handed on"
-    assert len(result.log) == counts["kept"] + counts["merged"] + counts["set_aside"], "read = kept + merged + set aside"
+    n_accounted = counts["kept"] + counts["merged"] + counts["set_aside"]
+    assert len(result.log) == n_accounted, "read = kept + merged + set aside"
     assert (counts["merged"], counts["set_aside"]) == (1, 2)
 
 

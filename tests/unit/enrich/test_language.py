@@ -1,7 +1,7 @@
 import pytest
 from lingua import Language
 
-from enrich_frames import record, records
+from tests.unit.enrich.enrich_frames import record, records
 from reporter.enrich.language import (
     DETECTION_LANGUAGES,
     ENGLISH_SHARE_OF_LEADER,

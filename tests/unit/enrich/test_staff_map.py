@@ -62,7 +62,8 @@ def test_read_staff_map_missing_column(tmp_path):
     path.write_text("person,unit\nX,Y\n", encoding="utf-8")
     with pytest.raises(InputError) as err:
         read_staff_map(path)
-    assert str(err.value) == f"{path}:1: departments.staff_map: missing column name, department (found: person, unit)"
+    expected = f"{path}:1: departments.staff_map: missing column name, department (found: person, unit)"
+    assert str(err.value) == expected
 
 
 def test_read_staff_map_missing_file_and_bad_orcid(tmp_path):

@@ -1,0 +1,71 @@
+"""The report context: documented fields, evidence caps, DOI links."""
+
+import dataclasses
+
+import pytest
+
+from tests.unit.render.render_inputs import GOALS, make_inputs, make_report
+from reporter.render import context as ctx
+from reporter.render.appendix import build_evidence, doi_url
+from reporter.render.sections import SECTIONS, build_context
+from reporter.render.themes import load_theme
+
+
+def _dataclasses_in(module):
+    return [obj for obj in vars(module).values() if dataclasses.is_dataclass(obj) and obj.__module__ == module.__name__]
+
+
+@pytest.mark.parametrize("cls", _dataclasses_in(ctx), ids=lambda c: c.__name__)
+def test_every_context_field_has_help_text(cls):
+    missing = [f.name for f in dataclasses.fields(cls) if not f.metadata.get("help")]
+    assert not missing, f"{cls.__name__}: fields without help text: {missing}"
+
+
+def test_context_types_are_frozen():
+    for cls in _dataclasses_in(ctx):
+        assert cls.__dataclass_params__.frozen, f"{cls.__name__} must be frozen"
+
+
+def test_evidence_is_capped_with_a_note():
+    blocks = build_evidence(make_inputs(), GOALS, cap=2)
+    water = next(b for b in blocks if b.goal == "6")
+    assert water.n_total == 4
+    assert len(water.rows) == 2
+    assert water.note == "showing the 2 strongest of 4"
+    scores = [r.alignment_score for r in water.rows]
+    assert scores == sorted(scores, reverse=True)
+
+
+def test_evidence_without_cap_has_no_note():
+    blocks = build_evidence(make_inputs(), GOALS, cap=50)
+    assert all(b.note == "" and len(b.rows) == b.n_total for b in blocks)
+
+
+def test_doi_links_are_plain_doi_org_urls():
+    assert doi_url("10.5555/abc(1)") == "https://doi.org/10.5555/abc(1)"
+    assert doi_url("10.5555/a b\"<x>") == "https://doi.org/10.5555/a%20b%22%3Cx%3E"
+    assert doi_url("javascript:alert(1)") == ""
+    assert doi_url("") == ""
+
+
+def test_context_follows_section_order_and_framework_goal_order():
+    context = build_context(make_inputs(), make_report(), load_theme("default"))
+    assert [s.title for s in context.sections] == [title for _a, title, _p in SECTIONS]
+    assert [r.goal for r in context.goal_profile.rows] == [code for code, _ in GOALS]
+    assert context.summary.changes and all(c.is_change for c in context.summary.changes)
+
+
+def test_rendering_does_not_change_its_inputs():
+    inputs = make_inputs()
+    before = {name: getattr(inputs.findings, name).copy() for name in ("goals", "by_department", "cooccurrence")}
+    records, scores = inputs.records.copy(), inputs.scores.copy()
+    build_context(inputs, make_report(), load_theme("default"))
+    for name, frame in before.items():
+        assert getattr(inputs.findings, name).equals(frame), name
+    assert inputs.records.equals(records) and inputs.scores.equals(scores)
+
+
+def test_wrong_tables_are_named():
+    inputs = make_inputs(scores=make_inputs().scores.drop(columns=["evidence"]))
+    with pytest.raises(TypeError, match="render: scores: missing columns evidence"):
+        build_context(inputs, make_report(), load_theme("default"))

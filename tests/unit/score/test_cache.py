@@ -1,0 +1,60 @@
+"""SQLite embedding cache and the encode-once wrapper (a counting stand-in model, not a mock of ours)."""
+
+import numpy as np
+
+from reporter.score.cache import EmbeddingCache
+from reporter.score.encode import EncodeStats, embed_texts
+
+
+class CountingModel:
+    """A deterministic toy embedder that records every text it was asked to encode."""
+
+    def __init__(self):
+        self.seen: list[str] = []
+
+    def encode(self, texts):
+        self.seen.extend(texts)
+        return np.array([[len(t), t.count("a"), 1.0] for t in texts], dtype=np.float32)
+
+
+def test_second_run_hits_the_cache_for_every_text(tmp_path):
+    texts = ["alpha", "beta", "alpha", "gamma"]
+    model = CountingModel()
+    with EmbeddingCache(tmp_path / "c.sqlite", "model-1", 3) as cache:
+        first = embed_texts(texts, model, cache, EncodeStats(), batch_size=2)
+    assert model.seen == ["alpha", "beta", "gamma"], "duplicate texts are embedded once"
+    stats = EncodeStats()
+    with EmbeddingCache(tmp_path / "c.sqlite", "model-1", 3) as cache:
+        second = embed_texts(texts, model, cache, stats)
+    assert model.seen == ["alpha", "beta", "gamma"], "nothing is re-encoded on a warm run"
+    assert stats.n_cache_hits == 3 and stats.n_encoded == 0
+    assert np.array_equal(first, second)
+
+
+def test_cache_is_keyed_by_model_checksum(tmp_path):
+    model = CountingModel()
+    with EmbeddingCache(tmp_path / "c.sqlite", "model-1", 3) as cache:
+        embed_texts(["alpha"], model, cache, EncodeStats())
+    with EmbeddingCache(tmp_path / "c.sqlite", "model-2", 3) as cache:
+        embed_texts(["alpha"], model, cache, EncodeStats())
+        assert cache.count() == 1
+    assert model.seen == ["alpha", "alpha"], "another model's vectors are never reused"
+
+
+def test_batches_are_committed_as_they_finish(tmp_path):
+    """A run that dies after the first batch keeps that batch (resume after kill)."""
+
+    class DiesOnSecondBatch(CountingModel):
+        def encode(self, texts):
+            if self.seen:
+                raise KeyboardInterrupt
+            return super().encode(texts)
+
+    model = DiesOnSecondBatch()
+    with EmbeddingCache(tmp_path / "c.sqlite", "m", 3) as cache:
+        try:
+            embed_texts(["a1", "a2", "a3"], model, cache, EncodeStats(), batch_size=2)
+        except KeyboardInterrupt:
+            pass
+    with EmbeddingCache(tmp_path / "c.sqlite", "m", 3) as cache:
+        assert cache.count() == 2
