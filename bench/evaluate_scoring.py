@@ -106,16 +106,18 @@ def sweep(prep: Prepared) -> list[dict]:
     grid = {
         "temperature": [0.03, 0.05, 0.08],
         "floor": [0.25, 0.30, 0.35],
-        "floor_width": [0.03, 0.05],
+        "floor_width": [0.04],
         "top_k": [2, 3],
-        "pool_top": [1, 2, 3],
-        "lexical_weight": [0.0, 0.35, 0.6],
+        "pool_top": [2, 3],
+        "lexical_weight": [0.35],
+        "competition": [1.0, 0.7, 0.5, 0.3, 0.0],
     }
     results = []
     for values in itertools.product(*grid.values()):
         p = dict(zip(grid, values))
         method = ScoringMethod(
-            align=AlignParams(p["temperature"], p["floor"], p["floor_width"], p["top_k"], p["pool_top"]),
+            align=AlignParams(p["temperature"], p["floor"], p["floor_width"], p["top_k"], p["pool_top"],
+                              p["competition"]),
             lexical_weight=p["lexical_weight"],
         )
         scores = scores_for(prep, method)

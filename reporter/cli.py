@@ -84,3 +84,26 @@ def build(config_path: Path, out_dir: Path | None, sentences: bool, verbose: int
     click.echo(f"Written to {config.output_dir}:")
     for label, path in result.written.items():
         click.echo(f"  {label}: {path}")
+
+
+@main.command("check-labels")
+@click.argument("config_path", metavar="CONFIG", type=click.Path(path_type=Path))
+@click.option("--out", "out_dir", type=click.Path(path_type=Path), default=None, help="Output folder (overrides report.output).")
+@click.option("--write-thresholds", "thresholds_path", type=click.Path(path_type=Path), default=None,
+              help="Where to write the recommended thresholds CSV (default: OUT/recommended-thresholds.csv).")
+@click.option("-q", "--quiet", is_flag=True, help="No progress bars; warnings only.")
+def check_labels(config_path: Path, out_dir: Path | None, thresholds_path: Path | None, quiet: bool) -> None:
+    """Score the labelled sample, compare with its labels, recommend per-goal thresholds."""
+    from reporter.analyse.validation import format_validation
+    from reporter.config import load_config
+    from reporter.pipeline import check_labels as run_check
+
+    _setup_logging(0, quiet)
+    try:
+        config = load_config(config_path, output=out_dir)
+        validation, written = run_check(config, thresholds_path, show_progress=not quiet)
+    except ReporterError as error:
+        _fail(error)
+    click.echo(format_validation(validation))
+    for label, path in written.items():
+        click.echo(f"{label}: {path}")

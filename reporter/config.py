@@ -136,7 +136,7 @@ class ScoreConfig(_Section):
         default=("title", "abstract", "keywords"), description="Record fields that make up the scored text."
     )
     threshold: float = Field(
-        default=0.5, ge=0, le=1, description="Alignment score at or above which a publication is aligned."
+        default=0.6, ge=0, le=1, description="Alignment score at or above which a publication is aligned."
     )
     policy: Literal["score_or_mention", "score_only", "mention_only"] = Field(
         default="score_or_mention",
@@ -303,8 +303,12 @@ def _resolve_paths(
         for i, item in enumerate(config.inputs)
     )
     out_dir = output.resolve() if output is not None else resolve(config.report.output, "report.output", False)
+    theme = config.report.theme
+    if "/" in theme or "\\" in theme or theme.startswith("."):
+        # A theme folder of the user's own resolves against the config folder like every other path.
+        theme = str(resolve(Path(theme), "report.theme", False))
     report = config.report.model_copy(
-        update={"output": out_dir, "logo": resolve(config.report.logo, "report.logo", True)}
+        update={"output": out_dir, "logo": resolve(config.report.logo, "report.logo", True), "theme": theme}
     )
     departments = config.departments.model_copy(
         update={"staff_map": resolve(config.departments.staff_map, "departments.staff_map", True)}

@@ -44,6 +44,10 @@ class InputError(ReporterError):
     """An input file is missing or cannot be read at all."""
 
 
+class OutputError(ReporterError):
+    """A file would be written outside the output folder."""
+
+
 class FrameworkError(ReporterError):
     """A goal framework file is invalid."""
 

@@ -134,3 +134,65 @@ def _relative(path: Path, base: Path) -> str:
         return path.resolve().relative_to(base.resolve()).as_posix()
     except ValueError:
         return str(path)
+
+
+# --- labelled sample check (`check-labels`, issue #6) ----------------------------------------
+
+
+def validate_run(config: Config, intake: IntakeResult, scores, labelled=None):
+    """A run's machine decisions against the config's labelled sample -> analyse.validation.Validation.
+
+    Pass `scores` before any review overrides: validation measures the method, not the reviewers.
+    """
+    from reporter.analyse.validation import validate
+
+    codes = tuple(scores.thresholds)  # framework order, one entry per goal
+    if labelled is None:
+        labelled = _labelled_sample(config, intake, codes)
+    return validate(
+        scores.table, labelled, codes, scores.thresholds, scores.policy,
+        global_threshold=config.score.threshold, target_precision=config.validation.target_precision,
+    )
+
+
+def check_labels(config: Config, thresholds_path: Path | None = None, show_progress: bool = True):
+    """Score the labelled publications only, validate, write recommended thresholds and validation.json.
+
+    Only the labelled publications are scored: scores are per publication, so the rest of the
+    corpus would change nothing here and would cost most of the time.
+    """
+    import json
+
+    from reporter.analyse.validation import write_thresholds
+    from reporter.render.atomic import write_text_atomic
+    from reporter.score import load_scoring_parts, score
+
+    intake = run_intake(config)
+    parts = load_scoring_parts(config.score)
+    try:
+        labelled = _labelled_sample(config, intake, parts.framework.goal_codes)
+        subset = intake.records[intake.records["record_id"].isin(labelled.labels["record_id"])]
+        scores = score(subset, parts.framework, parts.embedder, config.score, cache=parts.cache,
+                       thresholds=parts.thresholds, show_progress=show_progress)
+    finally:
+        parts.close()
+    validation = validate_run(config, intake, scores, labelled)
+    text = json.dumps(validation.to_dict(), indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+    written = {
+        "recommended thresholds": write_thresholds(
+            thresholds_path or config.output_dir / "recommended-thresholds.csv", validation.thresholds
+        ),
+        "validation": write_text_atomic(config.output_dir / "validation.json", text),
+    }
+    return validation, written
+
+
+def _labelled_sample(config: Config, intake: IntakeResult, codes: tuple[str, ...]):
+    from reporter.analyse.labelled import read_labelled_sample
+    from reporter.errors import ConfigError, Problem
+
+    path = config.validation.labelled_sample
+    if path is None:
+        raise ConfigError(Problem(config.config_path, None, "validation.labelled_sample",
+                                  "not set; give the CSV of publications judged by people"))
+    return read_labelled_sample(path, intake.records, codes)

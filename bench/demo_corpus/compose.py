@@ -67,18 +67,34 @@ def choose_slots(topic: Topic, rng: random.Random) -> dict[str, str]:
     return {name: rng.choice(values) for name, values in topic.slots.items()}
 
 
-def compose_title(topic: Topic, chosen: dict[str, str], rng: random.Random) -> str:
-    return _fill(rng.choice(topic.titles), chosen, rng)
+def compose_title(topic: Topic, chosen: dict[str, str], rng: random.Random, strand: int | None = None) -> str:
+    template = topic.titles[strand % len(topic.titles)] if strand is not None else rng.choice(topic.titles)
+    return _fill(template, chosen, rng)
 
 
 def compose_abstract(
-    topic: Topic, chosen: dict[str, str], rng: random.Random, mention: str | None = None
+    topic: Topic, chosen: dict[str, str], rng: random.Random, strand: int, mention: str | None = None
 ) -> str:
-    """Background, aim, method, result, implication; moves get a second sentence until long enough."""
-    picks = {move: rng.sample(getattr(topic, move), len(getattr(topic, move)))
-             for move in ("background", "aim", "method", "result", "implication")}
+    """Background, aim, method, result, implication; moves get a second sentence until long enough.
+
+    Pools are written in parallel strands (the n-th aim goes with the n-th method and
+    result), so the first sentence of those moves follows the strand and the paper
+    stays coherent; extra sentences come from the other strands.
+    """
+    picks = {}
+    for move in ("background", "aim", "method", "result", "implication"):
+        pool = list(getattr(topic, move))
+        if move in ("aim", "method", "result"):
+            first = pool.pop(strand % len(pool))
+            picks[move] = [first] + rng.sample(pool, len(pool))
+        else:
+            # keep the written order (general before specific) among the sentences used
+            picks[move] = sorted(rng.sample(pool, len(pool)), key=pool.index)
+            if rng.random() < 0.5:
+                picks[move] = picks[move][1:] + picks[move][:1]
     counts = {move: 1 for move in picks}
-    order = ["method", "result", "background", "result", "method"]
+    # At most two sentences per move while a target length is sought; a third only if still short.
+    order = ["result", "method", "background", "implication"]
 
     def words() -> int:
         return sum(len(" ".join(picks[m][: counts[m]]).split()) for m in picks)
@@ -88,6 +104,9 @@ def compose_abstract(
         if words() >= target:
             break
         if counts[move] < len(picks[move]):
+            counts[move] += 1
+    for move in ("method", "result"):
+        if words() < 125 and counts[move] < len(picks[move]):
             counts[move] += 1
     sentences: list[str] = []
     place_mention = rng.random() < 0.35

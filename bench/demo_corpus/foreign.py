@@ -1,12 +1,12 @@
 """Hand-written non-English records of the demo (German, Spanish, French, Portuguese).
 
 Each carries the goals a reviewer would assign, so the known numbers can say
-what an English-only model misses. `file` is where the record is exported.
+what an English-only model misses. `file` is where the record is exported; `partner` names the co-authoring institution.
 """
 
 FOREIGN = (
     dict(
-        lang="de", file="ris", year=2024, goals=("6",), dept="CEE", partner=9,
+        lang="de", file="ris", year=2024, goals=("6",), dept="CEE", partner="Rabenfeld",
         title="Nitrateinträge ins Grundwasser unter Grünlandbetrieben: eine Langzeitstudie in zwei Karsteinzugsgebieten",
         keywords=("Grundwasser", "Nitrat", "Karst", "Trinkwasserschutz"),
         abstract=("Erhöhte Nitratkonzentrationen im Grundwasser gefährden die Trinkwasserversorgung in vielen ländlichen Regionen. "
@@ -14,11 +14,12 @@ FOREIGN = (
                   "Ziel dieser Arbeit war es, die Wirkung veränderter Düngezeitpunkte auf die Nitratfracht in zwei Einzugsgebieten zu quantifizieren. "
                   "Dazu wurden über sechs Jahre monatlich Proben aus 48 Hausbrunnen und vier Quellen entnommen und mit Betriebsdaten zur Gülleausbringung verknüpft. "
                   "Ergänzend kamen Isotopenanalysen und ein einfaches Transferzeitmodell zum Einsatz. "
+                  "Die Betriebe stellten zudem Angaben zu Düngermengen, Beweidung und Bodenbearbeitung für jede Parzelle zur Verfügung. "
                   "Die Ergebnisse zeigen, dass eine Verlagerung der Ausbringung in das Frühjahr die Spitzenkonzentrationen im Herbst um rund ein Viertel senkte, "
                   "während der mittlere Nitratgehalt wegen der im Untergrund gespeicherten Altlasten nur langsam zurückging. "
                   "Für den Schutz der Trinkwasserressourcen empfehlen wir gezielte Maßnahmen in besonders durchlässigen Neubildungsgebieten.")),
     dict(
-        lang="de", file="bib", year=2025, goals=("7", "13"), dept="CEE", partner=10,
+        lang="de", file="bib", year=2025, goals=("7", "13"), dept="CEE", partner="Lindenau",
         title="Wärmepumpen im Gebäudebestand: Feldmessungen und Klimabilanz nach energetischer Sanierung",
         keywords=("Wärmepumpe", "Gebäudesanierung", "Energieeffizienz", "Treibhausgasemissionen"),
         abstract=("Die Dekarbonisierung der Raumwärme gilt als einer der schwierigsten Bausteine der Energiewende. "
@@ -28,9 +29,10 @@ FOREIGN = (
                   "Die mittlere Jahresarbeitszahl lag bei 3,1 und damit nur wenig unter den Werten in Neubauten; "
                   "entscheidend waren ausreichend dimensionierte Heizflächen und eine sorgfältige Einregulierung. "
                   "Gegenüber dem vorherigen Ölkessel sanken die betriebsbedingten Treibhausgasemissionen im Mittel um 62 Prozent. "
+                  "Die Heizkosten der Haushalte blieben trotz gestiegener Strompreise in den meisten Fällen stabil oder gingen leicht zurück. "
                   "Die Ergebnisse sprechen dafür, Förderprogramme stärker an den Austausch von Heizkörpern und an Beratung zur Regelung zu koppeln.")),
     dict(
-        lang="es", file="csv", year=2023, goals=("6", "3"), dept="CEE", partner=15,
+        lang="es", file="csv", year=2023, goals=("6", "3"), dept="CEE", partner="Altamesa",
         title="Calidad del agua de consumo en sistemas comunitarios rurales de los Andes peruanos",
         keywords=("agua potable", "saneamiento rural", "calidad microbiológica", "gestión comunitaria"),
         abstract=("En las zonas rurales andinas, gran parte de la población se abastece de sistemas de agua gestionados por juntas comunitarias con recursos limitados. "
@@ -42,7 +44,7 @@ FOREIGN = (
                   "solo una cuarta parte de los sistemas mantenía cloro residual adecuado. "
                   "Los resultados muestran la necesidad de apoyo técnico continuo y de financiamiento estable para garantizar agua segura en comunidades rurales.")),
     dict(
-        lang="es", file="ris", year=2024, goals=("5", "16"), dept="ESS", partner=16,
+        lang="es", file="ris", year=2024, goals=("5", "16"), dept="ESS", partner="Cerro Azul",
         title="Violencia de género y acceso a la justicia en municipios rurales de Colombia",
         keywords=("violencia de género", "acceso a la justicia", "ruralidad", "comisarías de familia"),
         abstract=("La violencia contra las mujeres es un problema persistente en las zonas rurales de Colombia, donde la presencia institucional es débil. "
@@ -53,7 +55,7 @@ FOREIGN = (
                   "Además, menos de la mitad de las medidas de protección se cumplieron en los plazos previstos. "
                   "Se concluye que fortalecer la atención especializada y las redes comunitarias es clave para una justicia efectiva con enfoque de género.")),
     dict(
-        lang="fr", file="csv", year=2022, goals=("4",), dept="ESS", partner=12,
+        lang="fr", file="csv", year=2022, goals=("4",), dept="ESS", partner="Valtrenne",
         title="Apprentissage de la lecture en classes multilingues : une étude longitudinale dans les écoles primaires",
         keywords=("lecture", "école primaire", "plurilinguisme", "inégalités scolaires"),
         abstract=("L'apprentissage de la lecture au cours des premières années de l'école primaire conditionne fortement la suite de la scolarité. "
@@ -65,7 +67,7 @@ FOREIGN = (
                   "Les classes où l'enseignement explicite du vocabulaire était fréquent présentaient des écarts nettement plus faibles. "
                   "Ces résultats plaident pour une formation des enseignants centrée sur le vocabulaire et la compréhension.")),
     dict(
-        lang="fr", file="bib", year=2025, goals=("3", "5"), dept="LSM", partner=41,
+        lang="fr", file="bib", year=2025, goals=("3", "5"), dept="LSM", partner="Shire Highlands",
         title="Qualité des soins prénatals et accouchements assistés en zone rurale : étude mixte au Sénégal et au Malawi",
         keywords=("santé maternelle", "soins prénatals", "agents de santé communautaire", "zones rurales"),
         abstract=("La mortalité maternelle demeure élevée dans de nombreuses zones rurales d'Afrique subsaharienne, où l'accès aux soins qualifiés reste limité. "
@@ -77,7 +79,7 @@ FOREIGN = (
                   "mais le coût du transport et le manque d'autonomie décisionnelle restaient des obstacles majeurs. "
                   "Améliorer la qualité des soins et l'autonomie des femmes apparaît indispensable pour réduire les décès maternels.")),
     dict(
-        lang="pt", file="csv", year=2023, goals=("2", "1"), dept="AFS", partner=18,
+        lang="pt", file="csv", year=2023, goals=("2", "1"), dept="AFS", partner="Serra Clara",
         title="Agricultura familiar, mercados institucionais e segurança alimentar no semiárido brasileiro",
         keywords=("agricultura familiar", "segurança alimentar", "compras públicas", "semiárido"),
         abstract=("A agricultura familiar responde por parte importante dos alimentos consumidos no Brasil, mas muitos agricultores do semiárido vivem em situação de pobreza. "

@@ -152,6 +152,8 @@ INSTITUTIONS = (
     ("School of Medicine, Lake Mweru University, Lusaka, Zambia", "ZM", "ke"),
     ("College of Health Sciences, Shire Highlands University, Blantyre, Malawi", "MW", "ke"),
     ("Department of Public Health, Abay University, Bahir Dar, Ethiopia", "ET", "et"),
+    ("Department of Social Work, Nile Crescent University, Gulu, Uganda", "UG", "ke"),
+    ("Himal Institute of Health Sciences, Kathmandu, Nepal", "NP", "in"),
     ("Faculty of Engineering, Kopjesberg University, Cape Town, South Africa", "ZA", "za"),
     ("Department of Agronomy, Zagros Plateau University, Shiraz, Iran", "IR", "ir"),
     ("Faculty of Engineering, Anadolu Ridge University, Ankara, Türkiye", "TR", "tr"),

@@ -158,7 +158,7 @@ TOPICS = [
                 "Earthworms, aggregates and yields: {practice} in {place}"),
         background=("Soil degradation threatens the productivity of farmland and the ecosystem services soils provide, from water regulation to habitat for soil organisms.",
                     "Practices such as {practice} are promoted to rebuild soil organic matter, but their effects vary with climate, soil type and management."),
-        aim=("We assess how {practice} affect soil structure, biology and crop yields in {place}.",
+        aim=("We assess the effects of {practice} on soil structure, soil biology and crop yields in {place}.",
              "This study evaluates the long-term effect of {practice} on soil organic carbon in {place}."),
         method=("A {n:5-20}-year field experiment with replicated plots was sampled for soil carbon, aggregate stability, earthworm density and microbial biomass.",
                 "We sampled {n:60-180} paired fields under contrasting management and used mixed models to account for soil type and rotation."),

@@ -43,6 +43,15 @@ VARIANTS: Mapping[str, str] = MappingProxyType({
     "bosnia herceg": "BA", "trinidad": "TT", "trinid tobago": "TT", "fr polynesia": "PF",
     "st kitts": "KN", "saint kitts": "KN", "st lucia": "LC", "st vincent": "VC",
     "falkland islands": "FK", "cocos islands": "CC", "keeling islands": "CC",
+    # Country names in their own languages, as co-authors often write their own address.
+    "deutschland": "DE", "bundesrepublik deutschland": "DE", "espana": "ES", "brasil": "BR",
+    "italia": "IT", "osterreich": "AT", "schweiz": "CH", "suisse": "CH", "svizzera": "CH",
+    "nederland": "NL", "belgie": "BE", "belgique": "BE", "sverige": "SE", "norge": "NO",
+    "danmark": "DK", "suomi": "FI", "polska": "PL", "cesko": "CZ", "ceska republika": "CZ",
+    "magyarorszag": "HU", "hrvatska": "HR", "slovensko": "SK", "slovenija": "SI", "eire": "IE",
+    "mexique": "MX", "peru": "PE", "maroc": "MA", "algerie": "DZ", "tunisie": "TN",
+    "senegal": "SN", "cameroun": "CM", "ellada": "GR", "hellas": "GR", "nippon": "JP",
+    "zhongguo": "CN", "bharat": "IN", "rossiya": "RU",
     # Place names that contain a country name: mapped to the country they lie in, or "".
     "new mexico": "US", "new jersey": "US", "jersey city": "US", "new south wales": "AU",
     "new england": "", "new guinea": "", "latin america": "", "south america": "",

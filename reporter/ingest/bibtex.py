@@ -25,6 +25,7 @@ from bibtexparser.model import (
     DuplicateBlockKeyBlock,
     DuplicateFieldKeyBlock,
     Entry,
+    ImplicitComment,
     ParsingFailedBlock,
     String,
 )
@@ -50,6 +51,8 @@ _LANGUAGE_FIELDS = ("language", "langid")
 _VERBATIM_FIELDS = ("doi", "url")
 _LATEX_ESCAPES = re.compile(r"\\([_%&#~$])")
 _KEY_IN_RAW = re.compile(r"@\s*\w+\s*[{(]\s*([^,\s{}()]+)\s*,")
+# Text between entries is a comment, but "name = {" there means an entry was closed too early.
+_STRAY_FIELD = re.compile(r"(?:^|[,\n])\s*[A-Za-z][\w-]*\s*=\s*[{\"\d]")
 
 
 def read_bibtex(path: Path, source_name: str, cfg: InputConfig, max_field_length: int) -> ReadResult:
@@ -71,15 +74,17 @@ def read_bibtex(path: Path, source_name: str, cfg: InputConfig, max_field_length
     for middleware in _decoding_stack():
         library = middleware.transform(library=library)
 
+    decoded_entries = [(e, extra) for e, extra in map(_decoded_entry, library.blocks) if e is not None]
+    # Crossref keys are case-insensitive in BibTeX; the first entry of a key is the parent.
+    parents: dict[str, Entry] = {}
+    for entry, _ in decoded_entries:
+        parents.setdefault((entry.key or "").lower(), entry)
     entries: list[RawEntry] = []
-    for block in library.blocks:
-        entry, extra = _decoded_entry(block)
-        if entry is None:
-            continue
+    for entry, extra in decoded_entries:
         line = (entry.start_line or 0) + 1
-        values = _values(entry, verbatim.get(entry.key, {}))
+        values, crossref_notes = _inherit(_values(entry, verbatim.get(entry.key, {})), entry, parents)
         native_id = entry.key or f"line{line}"
-        entry_notes = (*notes.get(entry.key, ()), *extra)
+        entry_notes = (*notes.get(entry.key, ()), *extra, *crossref_notes)
         entries.append(make_entry(source_name, line, FORMAT, native_id, values, max_field_length, entry_notes))
     return ReadResult(source_name, FORMAT, tuple(entries), tuple(rejected), tuple(warnings))
 
@@ -109,6 +114,7 @@ def _salvage(
     notes: dict[str, tuple[str, ...]] = {}
     taken = {entry.key for entry in map(_entry_of, blocks) if entry is not None}
     seen: set[str] = set()
+    previous: str | None = None  # key of the last entry, to name it when its fields spill over
     for block in blocks:
         line = (block.start_line or 0) + 1
         entry = _entry_of(block)
@@ -118,8 +124,14 @@ def _salvage(
             elif isinstance(block, ParsingFailedBlock):
                 rejected.append(Rejected(source_name, line, _key_of(block.raw), _failure(block, line, text)))
             else:
+                if isinstance(block, ImplicitComment) and previous is not None and _STRAY_FIELD.search(block.raw or ""):
+                    warnings.append(
+                        f"line {line}: text after entry {previous} looks like more of its fields "
+                        "(a closing brace too many?); it was ignored"
+                    )
                 kept.append(block)  # strings, comments, preambles: needed by or ignored in decoding
             continue
+        previous = entry.key
         entry_notes: list[str] = []
         if isinstance(block, DuplicateFieldKeyBlock):
             # BibTeX itself keeps the first value of a repeated field and ignores the rest.
@@ -230,6 +242,32 @@ def _values(entry: Entry, verbatim: dict[str, str]) -> dict[str, object]:
         "url": verbatim.get("url"),
         "issn": first(("issn",)),
     }
+
+
+def _inherit(
+    values: dict[str, object], entry: Entry, parents: dict[str, Entry]
+) -> tuple[dict[str, object], tuple[str, ...]]:
+    """Fill the year, language and venue an entry lacks from the entry its crossref names.
+
+    BibTeX takes every missing field from the cross-referenced entry (Patashnik 1988); only
+    these three are taken here, since a chapter's DOI, abstract or keywords are not the book's,
+    and a shared DOI would make duplicate detection merge two chapters.
+    """
+    target = next((f.value for f in entry.fields if f.key.lower() == "crossref"), None)
+    if not isinstance(target, str) or not target.strip():
+        return values, ()
+    parent = parents.get(target.strip().lower())
+    if parent is None or parent is entry:
+        return values, (f"crossref_not_found:{target.strip()}",)
+    inherited = _values(parent, {})
+    out = dict(values)
+    for name in ("year", "language"):
+        if not out.get(name):
+            out[name] = inherited[name]
+    if not out.get("venue"):
+        # A chapter's venue is the book: its booktitle or journal when given, else its title.
+        out["venue"] = inherited["venue"] or inherited["title"]
+    return out, ()
 
 
 def _authors(value: object) -> list[str]:

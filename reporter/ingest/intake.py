@@ -7,6 +7,7 @@ Nothing is written here. A missing or unreadable file raises InputError naming i
 from __future__ import annotations
 
 import codecs
+import dataclasses
 import re
 from collections.abc import Iterable
 from pathlib import Path, PurePosixPath
@@ -52,7 +53,12 @@ def _read_input(index: int, cfg: InputConfig, max_field_length: int, base_dir: P
         if fmt is None:
             message = 'cannot tell the format from the file name or content; set format = "bibtex", "ris" or "csv"'
             raise InputError(Problem(path, None, f"inputs[{index}].format", message))
-        return READERS[fmt](path, source_name(path, base_dir), cfg, max_field_length)
+        result = READERS[fmt](path, source_name(path, base_dir), cfg, max_field_length)
+        if result.n_read == 0 and not result.warnings:
+            # A configured export that yields nothing is worth a line, or it vanishes unnoticed.
+            note = "file is empty (0 bytes); nothing read" if path.stat().st_size == 0 else "no records found"
+            result = dataclasses.replace(result, warnings=(note,))
+        return result
     except OSError as exc:
         raise InputError(Problem(path, None, key, f"cannot read the file: {exc.strerror or exc}")) from None
     except InputError as exc:

@@ -24,6 +24,10 @@ _MAX_CONTROL_SHARE = 0.05
 _WHITESPACE = re.compile(r"[ \t\f\v\u00a0\u2000-\u200a\u2028\u202f\u205f\u3000]+")
 _PARAGRAPH = "\u2029"  # Unicode paragraph separator, used as a placeholder while folding lines
 _BLANK_LINES = re.compile(r"\n\s*\n")
+# Control characters that separate words (vertical tab, form feed, the four information
+# separators, NEL) become spaces rather than nothing, so the words around them stay apart;
+# FileMaker exports write a line break inside a field as a vertical tab (from memory).
+_SPACING_CONTROLS = dict.fromkeys((0x0B, 0x0C, 0x1C, 0x1D, 0x1E, 0x1F, 0x85), " ")
 
 
 @dataclass(frozen=True)
@@ -72,8 +76,8 @@ def _decode(data: bytes, encoding: str | None, warnings: list[str]) -> tuple[str
 def _looks_binary(text: str) -> bool:
     if not text:
         return False
-    if "\x00" in text:
-        return True
+    # NUL counts like any control character: one stray NUL in a large text export must not
+    # discard the whole file, while UTF-16 read as UTF-8 (every other character NUL) still does.
     controls = sum(1 for ch in text if unicodedata.category(ch) == "Cc" and ch not in "\t\n\r\f")
     replaced = text.count("\ufffd")
     return (controls + replaced) / len(text) > _MAX_CONTROL_SHARE
@@ -90,7 +94,7 @@ def clean_value(value: str, keep_paragraphs: bool = False) -> str:
     With `keep_paragraphs` (abstracts), a blank line survives as one "\\n"; single line breaks
     are hard wraps from the export and become spaces.
     """
-    value = unicodedata.normalize("NFC", value)
+    value = unicodedata.normalize("NFC", value).translate(_SPACING_CONTROLS)
     value = "".join(ch for ch in value if _is_kept(ch))
     if keep_paragraphs:
         value = _BLANK_LINES.sub(_PARAGRAPH, value)  # mark paragraph breaks before folding lines

@@ -42,12 +42,13 @@ def render(inputs: RenderInputs, report, output_dir: Path) -> dict[str, Path]:
     written: dict[str, Path] = {}
     data_dir = output_dir / "data"
     for name, text in data.items():
-        written[f"data/{name}"] = write_text_atomic(data_dir / name, text)
-    written["data/intake-log.csv"] = write_intake_log(inputs.intake_log, data_dir)
-    written["data/manifest.json"] = write_manifest(inputs.manifest, dict(written), output_dir,
-                                                   data_dir / "manifest.json")
-    written["report.html"] = write_text_atomic(output_dir / "report.html", html)
-    written["report.pdf"] = write_bytes_atomic(output_dir / "report.pdf", pdf)
+        written[f"data/{name}"] = write_text_atomic(data_dir / name, text, root=output_dir)
+    # The intake log and the manifest sit beside the report, where a reader looks first.
+    written["intake-log.csv"] = write_intake_log(inputs.intake_log, output_dir)
+    written["manifest.json"] = write_manifest(inputs.manifest, dict(written), output_dir,
+                                              output_dir / "manifest.json")
+    written["report.html"] = write_text_atomic(output_dir / "report.html", html, root=output_dir)
+    written["report.pdf"] = write_bytes_atomic(output_dir / "report.pdf", pdf, root=output_dir)
     return written
 
 

@@ -32,7 +32,7 @@ class RenderInputs:
     framework_info: dict = _h("Goal framework: id, title, version, checksum")
     model_info: dict = _h("Scoring model: id, checksum, backend")
     score_settings: dict = _h("threshold, thresholds (goal -> value), policy, text_fields")
-    manifest: dict = _h("Run manifest, written as data/manifest.json")
+    manifest: dict = _h("Run manifest, written as manifest.json beside the report")
     generated_at: str = _h("When the report was made (ISO 8601); the only line allowed to differ between runs")
 
 

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import io
 import json
+import re
 from pathlib import Path
 
 import pandas as pd
@@ -15,15 +16,15 @@ from reporter.render.atomic import write_text_atomic
 _FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
 
 
+# Plain signed decimals stay numbers. float() is not the test: it also takes "-inf", "-nan"
+# and "-1_0", which a spreadsheet reads as a formula naming something.
+_SIGNED_NUMBER = re.compile(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?")
+
+
 def neutralise_cell(value: object) -> object:
     """Prefix a text cell that a spreadsheet would run as a formula with an apostrophe."""
-    if isinstance(value, str) and value.startswith(_FORMULA_START):
-        # Plain negative numbers stay numbers.
-        try:
-            float(value)
-            return value
-        except ValueError:
-            return "'" + value
+    if isinstance(value, str) and value.startswith(_FORMULA_START) and not _SIGNED_NUMBER.fullmatch(value):
+        return "'" + value
     return value
 
 
@@ -43,13 +44,14 @@ def frame_to_csv(frame: pd.DataFrame) -> str:
     return buffer.getvalue()
 
 
-def write_csv(frame: pd.DataFrame, path: Path) -> Path:
-    return write_text_atomic(path, frame_to_csv(frame))
+def write_csv(frame: pd.DataFrame, path: Path, root: Path | None = None) -> Path:
+    """Write `frame` as CSV; with `root`, refuse a path that resolves outside that folder."""
+    return write_text_atomic(path, frame_to_csv(frame), root=root)
 
 
 def write_intake_log(log: pd.DataFrame, output_dir: Path) -> Path:
     require_columns(log, INTAKE_LOG_COLUMNS, "write_intake_log")
-    return write_csv(log.loc[:, list(INTAKE_LOG_COLUMNS)], output_dir / "intake-log.csv")
+    return write_csv(log.loc[:, list(INTAKE_LOG_COLUMNS)], output_dir / "intake-log.csv", root=output_dir)
 
 
 def scores_table(scores: pd.DataFrame, goal_order: list[str]) -> pd.DataFrame:
@@ -79,7 +81,7 @@ def evidence_table(scores: pd.DataFrame, records: pd.DataFrame, goals: tuple[tup
     return table.loc[:, list(EVIDENCE_COLUMNS)].reset_index(drop=True)
 
 
-def write_json(document: object, path: Path) -> Path:
+def write_json(document: object, path: Path, root: Path | None = None) -> Path:
     """JSON with sorted keys and a final newline: identical input, identical bytes."""
     text = json.dumps(document, ensure_ascii=False, indent=2, sort_keys=True, default=str, allow_nan=False)
-    return write_text_atomic(path, text + "\n")
+    return write_text_atomic(path, text + "\n", root=root)

@@ -39,4 +39,4 @@ def write_manifest(manifest: dict, outputs: dict[str, Path], output_dir: Path, p
     checksums = {label: sha256_file(p) for label, p in sorted(outputs.items())}
     document = {**manifest, "outputs": {label: {"path": str(p.relative_to(output_dir)), "sha256": checksums[label]}
                                         for label, p in sorted(outputs.items())}}
-    return write_json(document, path)
+    return write_json(document, path, root=output_dir)

@@ -134,14 +134,17 @@ def _change_rows(frame: pd.DataFrame, goals: Sequence[tuple[str, str]]) -> tuple
 
 def _group_rows(frame: pd.DataFrame, key: str, label: str, goals: Sequence[tuple[str, str]],
                 order: Sequence[str] | None = None) -> tuple[GroupRow, ...]:
-    """One row per group with a cell per goal; groups ordered largest first, then by name."""
+    """One row per group with a cell per goal; groups largest first, then by name, unassigned last."""
     if frame.empty:
         return ()
     frame = frame.assign(goal=frame["goal"].astype(str))
-    sizes = frame.groupby(key, sort=True).agg(n=("n", "max"), label=(label, "first"),
-                                              small=("is_too_small", "any"))
+    # Under fractional counting `n` is a sum of weights; the group's size is its distinct publications.
+    size = "n_publications" if "n_publications" in frame.columns else "n"
+    unassigned = frame["is_unassigned"] if "is_unassigned" in frame.columns else pd.Series(False, index=frame.index)
+    sizes = frame.assign(_unassigned=unassigned).groupby(key, sort=True).agg(
+        n=(size, "max"), label=(label, "first"), small=("is_too_small", "any"), last=("_unassigned", "any"))
     if order is None:
-        order = sizes.sort_values(["n", "label"], ascending=[False, True], kind="stable").index.tolist()
+        order = sizes.sort_values(["last", "n", "label"], ascending=[True, False, True], kind="stable").index.tolist()
     rows = []
     for group in order:
         if group not in sizes.index:
@@ -161,8 +164,13 @@ def _group_rows(frame: pd.DataFrame, key: str, label: str, goals: Sequence[tuple
     return tuple(rows)
 
 
+def _unassigned(frame: pd.DataFrame) -> pd.Series:
+    return frame["is_unassigned"].astype(bool) if "is_unassigned" in frame.columns else pd.Series(False, index=frame.index)
+
+
 def _departments(frame: pd.DataFrame, goals, theme: Theme, min_size: int) -> DepartmentSection:
-    rows = _group_rows(frame.assign(label=frame["department"]), "department", "label", goals)
+    labels = frame["department"].where(~_unassigned(frame), "no department recorded")
+    rows = _group_rows(frame.assign(label=labels), "department", "label", goals)
     chart = None
     if rows:
         chart = charts.draw_group_heatmap(rows, goals, theme, what="departments", name="departments",
@@ -173,7 +181,8 @@ def _departments(frame: pd.DataFrame, goals, theme: Theme, min_size: int) -> Dep
 
 def _partners(countries: pd.DataFrame, collaboration: pd.DataFrame, goals, theme: Theme,
               min_size: int) -> PartnerSection:
-    all_countries = _group_rows(countries, "country", "country_name", goals)
+    # Publications without a partner country are the domestic group, shown under collaboration instead.
+    all_countries = _group_rows(countries.loc[~_unassigned(countries)], "country", "country_name", goals)
     shown = all_countries[:N_COUNTRIES_SHOWN]
     labels = {"international": "International", "domestic": "Domestic only"}
     collab = _group_rows(collaboration.assign(label=collaboration["group"].map(labels)), "group", "label",

@@ -21,6 +21,7 @@ class AlignParams:
     floor_width: float = 0.04  # how sharply the gate opens around the floor
     top_k: int = 3  # strongest sentences averaged per publication and goal
     pool_top: int = 2  # descriptors averaged per goal (the goal's best matches)
+    competition: float = 0.5  # 1: goals compete in one softmax; 0: each goal only against the background
 
 
 @dataclass(frozen=True)
@@ -69,6 +70,11 @@ def sentence_scores(sentence_vectors: np.ndarray, space: GoalSpace, params: Alig
     goal_sim = goal_similarity(sentence_vectors, space, params.pool_top)
     background_sim = (sentence_vectors @ space.background.T).max(axis=1, keepdims=True)
     probs = softmax(np.hstack([goal_sim, background_sim]) / params.temperature, axis=1)[:, :-1]
+    if params.competition < 1.0:
+        # A sentence can serve two goals at once (heat stress is about health and cities); scored
+        # against the background alone, a goal does not lose mass to its neighbours.
+        alone = 1.0 / (1.0 + np.exp(-(goal_sim - background_sim) / params.temperature))
+        probs = params.competition * probs + (1.0 - params.competition) * alone
     gate = 1.0 / (1.0 + np.exp(-(goal_sim - params.floor) / params.floor_width))
     return (probs * gate).astype(np.float32), goal_sim
 

@@ -57,13 +57,6 @@ class Scores:
     stats: dict
 
 
-class Embedder:  # protocol-like documentation of what `score` needs from a model
-    info: object
-
-    def encode(self, texts: list[str]) -> np.ndarray: ...
-    def count_tokens(self, texts: list[str]) -> list[int]: ...
-
-
 def build_goal_space(framework: GoalFramework, embedder, cache: EmbeddingCache | None, stats: EncodeStats) -> GoalSpace:
     texts: list[str] = []
     owners: list[int] = []
@@ -78,6 +71,37 @@ def build_goal_space(framework: GoalFramework, embedder, cache: EmbeddingCache |
         descriptor_goal=np.asarray(owners),
         background=background,
     )
+
+
+class _EmbeddingSentenceScorer:
+    """Sentence texts -> goal scores through embeddings (cached) and the goal space."""
+
+    def __init__(self, framework, embedder, cache, stats: EncodeStats, params: AlignParams):
+        self.space = build_goal_space(framework, embedder, cache, stats)
+        self._embedder, self._cache, self._stats, self._params = embedder, cache, stats, params
+
+    def __call__(self, texts: list[str]) -> np.ndarray:
+        vectors = embed_texts(texts, self._embedder, self._cache, self._stats)
+        return sentence_scores(vectors, self.space, self._params)[0]
+
+
+class _EntailmentSentenceScorer:
+    """Sentence texts -> goal scores as entailment probabilities (each distinct sentence once)."""
+
+    def __init__(self, framework, model, stats: EncodeStats):
+        self._titles = [goal.short_title for goal in framework.goals]
+        self._model, self._stats = model, stats
+
+    def __call__(self, texts: list[str]) -> np.ndarray:
+        distinct = list(dict.fromkeys(texts))
+        self._stats.n_texts += len(texts)
+        self._stats.n_unique += len(distinct)
+        began = time.perf_counter()
+        table = self._model.entailment(distinct, self._titles) if distinct else np.zeros((0, len(self._titles)))
+        self._stats.seconds_encoding += time.perf_counter() - began
+        self._stats.n_encoded += len(distinct)
+        index = {t: i for i, t in enumerate(distinct)}
+        return table[[index[t] for t in texts]] if texts else table
 
 
 def decide(score: np.ndarray, explicit: np.ndarray, thresholds: np.ndarray, policy: str) -> np.ndarray:
@@ -109,7 +133,10 @@ def score(
     threshold_row = np.array([thresholds[c] for c in codes], dtype=np.float32)
     stats = EncodeStats()
     began = time.perf_counter()
-    space = build_goal_space(framework, embedder, cache, stats)
+    if embedder.info.backend == "nli":
+        scorer = _EntailmentSentenceScorer(framework, embedder, stats)
+    else:
+        scorer = _EmbeddingSentenceScorer(framework, embedder, cache, stats, method.align)
     patterns = compile_mentions(framework)
     keywords = KeywordMatcher.build(codes, [goal.keywords for goal in framework.goals])
     splitter = SentenceSplitter()
@@ -119,8 +146,8 @@ def score(
     for start in range(0, len(records), CHUNK_RECORDS):
         chunk = records.iloc[start : start + CHUNK_RECORDS]
         result = _score_chunk(
-            chunk, cfg, space, patterns, framework, keywords, splitter, embedder, cache, stats, method,
-            threshold_row, keep_sentences,
+            chunk, cfg, codes, scorer, patterns, keywords, splitter, embedder, method, threshold_row,
+            keep_sentences,
         )
         tables.append(result[0])
         evidence_rows.extend(result[1])
@@ -165,15 +192,16 @@ def _progress(total: int, show: bool):
     return tqdm(total=total, unit="pub", desc="Scoring", file=sys.stderr, leave=False)
 
 
-def _score_chunk(chunk, cfg, space, patterns, framework, keywords, splitter, embedder, cache, stats, method,
-                 threshold_row, keep_sentences):
+def _score_chunk(chunk, cfg, codes, scorer, patterns, keywords, splitter, embedder, method, threshold_row,
+                 keep_sentences):
     record_ids = chunk["record_id"].tolist()
     units: list[TextUnit] = []
-    explicit_counts = np.zeros((len(chunk), space.n_goals), dtype=np.int32)
-    lexical = np.zeros((len(chunk), space.n_goals), dtype=np.float32)
+    n_goals = len(codes)
+    explicit_counts = np.zeros((len(chunk), n_goals), dtype=np.int32)
+    lexical = np.zeros((len(chunk), n_goals), dtype=np.float32)
     general_rows = []
     mention_spans: dict[tuple[int, int], list[tuple[int, int]]] = {}
-    code_index = {code: g for g, code in enumerate(space.goal_codes)}
+    code_index = {code: g for g, code in enumerate(codes)}
     for i, row in enumerate(chunk.itertuples(index=False)):
         fields = {f: getattr(row, f) for f in ("title", "abstract", "keywords") if hasattr(row, f)}
         units.extend(record_units(row.record_id, fields, cfg.text_fields, splitter))
@@ -187,11 +215,9 @@ def _score_chunk(chunk, cfg, space, patterns, framework, keywords, splitter, emb
         lexical[i] = [lexical_score(h, method.lexical_scale) for h in hits]
 
     units = fit_to_model(units, embedder.info.max_tokens, embedder.count_tokens)
-    vectors = embed_texts([u.text for u in units], embedder, cache, stats)
+    per_sentence = scorer([u.text for u in units]) if units else np.zeros((0, n_goals), np.float32)
     position = {rid: i for i, rid in enumerate(record_ids)}
     unit_record = np.array([position[u.record_id] for u in units], dtype=np.int64)
-    per_sentence, _ = sentence_scores(vectors, space, method.align) if len(units) else (
-        np.zeros((0, space.n_goals), np.float32), None)
     semantic = aggregate_by_record(unit_record, per_sentence, len(chunk), method.align.top_k)
     # Noisy-or: the keyword signal can lift a score but never lower it.
     combined = semantic + (1.0 - semantic) * method.lexical_weight * lexical
@@ -199,13 +225,12 @@ def _score_chunk(chunk, cfg, space, patterns, framework, keywords, splitter, emb
     aligned = decide(combined, explicit, threshold_row, cfg.policy)
 
     evidence_rows, best_text, best_score = pick_evidence(
-        units, unit_record, per_sentence, aligned, explicit, record_ids, space.goal_codes, patterns,
-        EVIDENCE_PER_PAIR,
+        units, unit_record, per_sentence, aligned, explicit, record_ids, codes, patterns, EVIDENCE_PER_PAIR,
     )
-    n, g = len(chunk), space.n_goals
+    n, g = len(chunk), n_goals
     table = pd.DataFrame({
         "record_id": np.repeat(record_ids, g),
-        "goal": np.tile(space.goal_codes, n),
+        "goal": np.tile(codes, n),
         "alignment_score": np.round(combined.reshape(-1).astype(float), 6),
         "n_explicit_mentions": explicit_counts.reshape(-1),
         "is_explicit": explicit.reshape(-1),
@@ -215,7 +240,7 @@ def _score_chunk(chunk, cfg, space, patterns, framework, keywords, splitter, emb
     })
     sentences = None
     if keep_sentences:
-        sentences = _sentence_table(units, per_sentence, space.goal_codes)
+        sentences = _sentence_table(units, per_sentence, codes)
     return table, evidence_rows, general_rows, sentences
 
 

@@ -8,12 +8,19 @@ windows. Nothing is silently truncated.
 from __future__ import annotations
 
 from dataclasses import dataclass
+import re
 from typing import Callable, Iterable, Sequence
 
 import pysbd
 
 # Units shorter than this carry no goal signal of their own ("Methods:", "2.").
 _MIN_CHARS = 12
+# Publisher and licence lines that exports append to abstracts; they say nothing about the research.
+_BOILERPLATE = re.compile(
+    r"(©|\(c\)\s*\d{4}|\bcopyright\b|all rights reserved|published by\b|this is an open access article"
+    r"|creative commons|\bCC[ -]BY\b|this article is protected by)",
+    re.IGNORECASE,
+)
 
 
 @dataclass(frozen=True)
@@ -48,7 +55,9 @@ def record_units(
     if "title" in text_fields and fields.get("title"):
         pieces.append(("title", " ".join(str(fields["title"]).split())))
     if "abstract" in text_fields and fields.get("abstract"):
-        pieces.extend(("abstract", s) for s in splitter.split(str(fields["abstract"])))
+        pieces.extend(
+            ("abstract", s) for s in splitter.split(str(fields["abstract"])) if not _BOILERPLATE.search(s)
+        )
     keywords = fields.get("keywords") or ()
     if "keywords" in text_fields and keywords:
         pieces.append(("keywords", "Keywords: " + "; ".join(str(k) for k in keywords)))

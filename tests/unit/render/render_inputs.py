@@ -25,6 +25,7 @@ GOALS = (
 )
 INJECTED_TITLE = "<script>alert(1)</script> Well water in upland villages"
 INJECTED_DEPARTMENT = "=HYPERLINK(\"x\")"
+INJECTED_FORMULA_TITLE = "=1+2 Battery ageing in cold storage"
 INJECTED_EVIDENCE = "<img src=x onerror=alert(2)> Wells were tested monthly for nitrate."
 GENERATED_AT = "2025-03-01T09:00:00+00:00"
 
@@ -35,7 +36,7 @@ _PUBLICATIONS = [
     ("nm:03", 2024, ("Public Health",), ("FR",), "Clinic waiting times in market towns", "10.5555/nm.0003", ("3",), ("3",)),
     ("nm:04", 2024, ("Public Health",), (), "Heat stress among older residents", "", ("3", "13"), ()),
     ("nm:05", 2024, ("Energy Systems",), ("DE", "NO"), "Small wind turbines on farm land", "10.5555/nm.0005", ("7", "13"), ("7",)),
-    ("nm:06", 2024, ("Energy Systems",), (), "Battery ageing in cold storage", "10.5555/nm.0006", ("7",), ()),
+    ("nm:06", 2024, ("Energy Systems",), (), INJECTED_FORMULA_TITLE, "10.5555/nm.0006", ("7",), ()),
     ("nm:07", 2024, (INJECTED_DEPARTMENT,), (), "A survey of reading habits", "10.5555/nm.0007", (), ()),
     ("nm:08", 2024, ("Hydrology", "Public Health"), ("FR",), "Waterborne illness after floods", "10.5555/nm.0008", ("3", "6"), ()),
     ("nm:09", 2023, ("Hydrology",), (), "River sediment loads in spring", "10.5555/nm.0009", ("6",), ()),

@@ -1,14 +1,16 @@
 """The report context: documented fields, evidence caps, DOI links."""
 
 import dataclasses
+from dataclasses import replace as swap
 
 import pytest
 
 from tests.unit.render.render_inputs import GOALS, make_inputs, make_report
 from reporter.render import context as ctx
 from reporter.render.appendix import build_evidence, doi_url
+from reporter.render.html import render_html
 from reporter.render.sections import SECTIONS, build_context
-from reporter.render.themes import load_theme
+from reporter.render.themes import build_environment, load_theme
 
 
 def _dataclasses_in(module):
@@ -69,3 +71,39 @@ def test_wrong_tables_are_named():
     inputs = make_inputs(scores=make_inputs().scores.drop(columns=["evidence"]))
     with pytest.raises(TypeError, match="render: scores: missing columns evidence"):
         build_context(inputs, make_report(), load_theme("default"))
+
+
+def _empty_like(frame):
+    return frame.iloc[0:0]
+
+
+def test_sparse_findings_render_with_plain_notes_instead_of_charts():
+    full = make_inputs().findings
+    sparse = swap(
+        full,
+        meta={**full.meta, "comparison_years": (), "years": (2024,)},
+        by_year=full.by_year.loc[full.by_year["year"] == 2024],
+        changes=_empty_like(full.changes), by_department=_empty_like(full.by_department),
+        by_country=_empty_like(full.by_country), collaboration=_empty_like(full.collaboration),
+        cooccurrence=_empty_like(full.cooccurrence), sensitivity=_empty_like(full.sensitivity),
+    )
+    theme = load_theme("default")
+    context = build_context(make_inputs(findings=sparse), make_report(comparison_years=()), theme)
+    assert context.change.chart is None and context.departments.chart is None and context.together.chart is None
+    html = render_html(context, build_environment(theme), theme)
+    assert "No earlier years were compared" in html
+    assert "add a staff map" in html
+    assert "No partner country was found" in html
+    assert "No publication is aligned with more than one goal" in html
+    assert html.count("<svg ") == 1, "only the goal profile has something to draw"
+
+
+def test_unassigned_department_is_named_and_listed_last():
+    findings = make_inputs().findings
+    extra = findings.by_department.assign(
+        department=lambda f: f["department"].where(f["department"] != "Hydrology", "unassigned"),
+        is_unassigned=lambda f: f["department"] == "unassigned",
+    )
+    context = build_context(make_inputs(findings=swap(findings, by_department=extra)), make_report(),
+                            load_theme("default"))
+    assert context.departments.rows[-1].label == "no department recorded"

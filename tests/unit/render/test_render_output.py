@@ -11,7 +11,9 @@ from html.parser import HTMLParser
 import pypdf
 import pytest
 
-from tests.unit.render.render_inputs import INJECTED_DEPARTMENT, INJECTED_EVIDENCE, INJECTED_TITLE
+from tests.unit.render.render_inputs import (
+    INJECTED_DEPARTMENT, INJECTED_EVIDENCE, INJECTED_FORMULA_TITLE, INJECTED_TITLE,
+)
 from reporter.render.sections import SECTIONS
 
 SECTION_TITLES = [title for _anchor, title, _partial in SECTIONS]
@@ -64,7 +66,7 @@ def pdf_pages(rendered) -> list[str]:
 
 def test_render_writes_every_promised_file(rendered):
     for label in ("report.html", "report.pdf", "data/scores.csv", "data/evidence.csv", "data/findings.json",
-                  "data/intake-log.csv", "data/manifest.json"):
+                  "intake-log.csv", "manifest.json"):
         assert rendered[label].is_file(), label
     leftovers = [p.name for p in rendered["report.html"].parent.rglob(".*.tmp")]
     assert not leftovers, "atomic writes leave no temporary files"
@@ -114,11 +116,10 @@ def test_too_small_groups_are_marked_not_coloured(rendered):
 
 def test_csv_exports_neutralise_formula_cells(rendered):
     rows = list(csv.DictReader(io.StringIO(rendered["data/evidence.csv"].read_text(encoding="utf-8"))))
-    departments = {r["departments"] for r in rows}
-    assert INJECTED_DEPARTMENT not in departments
-    raw = rendered["data/evidence.csv"].read_text(encoding="utf-8")
-    assert "'" + INJECTED_DEPARTMENT.replace('"', '""') not in raw or True
-    intake = rendered["data/intake-log.csv"].read_text(encoding="utf-8")
+    titles = {r["record_id"]: r["title"] for r in rows}
+    assert titles["nm:06"] == "'" + INJECTED_FORMULA_TITLE, "a leading = must not reach a spreadsheet as a formula"
+    assert not [r for r in rows for v in r.values() if v[:1] in ("=", "+", "@")]
+    intake = rendered["intake-log.csv"].read_text(encoding="utf-8")
     assert INJECTED_TITLE in intake, "markup in CSV is data, kept as it is"
 
 
@@ -132,8 +133,8 @@ def test_department_formula_is_prefixed_in_findings_tables(rendered):
 def test_findings_json_and_manifest_are_valid_json(rendered):
     findings = json.loads(rendered["data/findings.json"].read_text(encoding="utf-8"))
     assert findings["headline"]["n_publications"] == 12
-    manifest = json.loads(rendered["data/manifest.json"].read_text(encoding="utf-8"))
-    assert set(manifest["outputs"]) >= {"data/scores.csv", "data/findings.json", "data/intake-log.csv"}
+    manifest = json.loads(rendered["manifest.json"].read_text(encoding="utf-8"))
+    assert set(manifest["outputs"]) >= {"data/scores.csv", "data/findings.json", "intake-log.csv"}
     assert all(len(entry["sha256"]) == 64 for entry in manifest["outputs"].values())
 
 
@@ -144,8 +145,8 @@ def test_pdf_has_section_titles_as_text(pdf_pages):
 
 
 def test_pdf_contents_page_numbers_point_at_the_sections(pdf_pages):
-    contents = next(i for i, t in enumerate(pdf_pages) if t.lstrip().startswith("Research") and "Contents" in t
-                    and "At a glance" in t)
+    contents = next(i for i, t in enumerate(pdf_pages) if t.lstrip().startswith("Contents"))
+    assert contents == 1, "the contents page follows the cover"
     listed = {}
     for title in SECTION_TITLES:
         match = re.search(re.escape(title) + r"[ .]*?(\d+)\s*$", pdf_pages[contents], re.M)
@@ -153,6 +154,9 @@ def test_pdf_contents_page_numbers_point_at_the_sections(pdf_pages):
         listed[title] = int(match.group(1))
     for title, number in listed.items():
         assert title in pdf_pages[number - 1], f"{title!r} listed on page {number} but not found there"
+        # Each section starts on a new page, so the page before belongs to another section.
+        if number - 2 != contents:
+            assert title not in pdf_pages[number - 2], f"{title!r} already on page {number - 1}"
 
 
 def test_pdf_pages_carry_running_page_numbers(pdf_pages):

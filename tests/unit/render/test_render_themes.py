@@ -6,7 +6,9 @@ import jinja2
 import numpy as np
 import pytest
 
+from reporter.render.branding import build_theme_view
 from reporter.render.themes import THEMES_ROOT, ThemeError, build_environment, load_theme
+from tests.unit.render.render_inputs import make_report
 
 
 def test_default_theme_has_palette_fonts_and_page_size():
@@ -124,3 +126,17 @@ def test_sequential_ramp_gets_darker_step_by_step():
     ramp = load_theme("default").palette["sequential"]
     lightness = [_lab(_linear(c))[0] for c in ramp]
     assert lightness == sorted(lightness, reverse=True), "heat maps read lightness as value"
+
+
+DEJAVU = Path("/usr/share/fonts/truetype/dejavu/DejaVuSans.ttf")
+
+
+@pytest.mark.skipif(not DEJAVU.is_file(), reason="needs a local TrueType font to copy into the theme")
+def test_theme_font_files_are_inlined_as_data_uris(tmp_path):
+    (tmp_path / "fonts").mkdir()
+    (tmp_path / "fonts" / "body.ttf").write_bytes(DEJAVU.read_bytes())
+    (tmp_path / "theme.toml").write_text(
+        '[[font_files]]\nfamily = "Northmere Text"\nfile = "fonts/body.ttf"\n', encoding="utf-8")
+    view = build_theme_view(load_theme(str(tmp_path)), make_report(), "screen")
+    assert '@font-face { font-family: "Northmere Text"; src: url(data:font/ttf;base64,' in view.font_css
+    assert str(tmp_path) not in view.font_css

@@ -23,3 +23,10 @@ def test_long_unit_is_split_into_windows_not_truncated():
     assert len(out) > 1
     assert all(len(u.text.split()) <= 100 for u in out)
     assert " ".join(u.text for u in out).split() == words, "every word is still scored"
+
+
+def test_publisher_boilerplate_is_not_scored():
+    abstract = ("Nitrate leaching was measured in twelve catchments. "
+                "© 2024 The Authors. Published by Example Press Ltd. All rights reserved.")
+    units = record_units("r", {"abstract": abstract}, ("abstract",), SentenceSplitter())
+    assert [u.text for u in units] == ["Nitrate leaching was measured in twelve catchments."]
