@@ -61,9 +61,12 @@ def intake(config_path: Path, out_dir: Path | None, verbose: int, quiet: bool) -
 @click.argument("config_path", metavar="CONFIG", type=click.Path(path_type=Path))
 @click.option("--out", "out_dir", type=click.Path(path_type=Path), default=None, help="Output folder (overrides report.output).")
 @click.option("--sentences", is_flag=True, help="Also export per-sentence scores (data/sentences.csv).")
+@click.option("--review-worksheet", is_flag=True,
+              help="Also write review-worksheet.csv: borderline pairs near the threshold, for people to decide.")
 @click.option("-v", "--verbose", count=True, help="More detail on stderr.")
 @click.option("-q", "--quiet", is_flag=True, help="No progress bars; warnings only.")
-def build(config_path: Path, out_dir: Path | None, sentences: bool, verbose: int, quiet: bool) -> None:
+def build(config_path: Path, out_dir: Path | None, sentences: bool, review_worksheet: bool, verbose: int,
+          quiet: bool) -> None:
     """Run the whole job: intake, scoring, analysis, report (HTML + PDF), exports, manifest."""
     from reporter.config import load_config
     from reporter.pipeline import run
@@ -72,7 +75,7 @@ def build(config_path: Path, out_dir: Path | None, sentences: bool, verbose: int
     _setup_logging(verbose, quiet)
     try:
         config = load_config(config_path, output=out_dir)
-        result = run(config, show_progress=not quiet, keep_sentences=sentences)
+        result = run(config, show_progress=not quiet, keep_sentences=sentences, review_worksheet=review_worksheet)
     except ReporterError as error:
         _fail(error)
     click.echo(format_intake_summary(result.intake))

@@ -128,9 +128,13 @@ class ScoreConfig(_Section):
         default=BUILTIN_MODEL,
         description="Sentence-embedding model: the built-in default, or a local sentence-transformers folder.",
     )
-    backend: Literal["embedding", "nli"] = Field(
+    backend: Literal["embedding", "embedding-int8", "nli"] = Field(
         default="embedding",
-        description="embedding: cosine similarity to descriptors; nli: entailment with a local cross-encoder (slower).",
+        description=(
+            "embedding: cosine similarity to descriptors; embedding-int8: the same with int8 weights "
+            "(faster on CPU, decisions differ slightly; see bench/README.md); "
+            "nli: entailment with a local cross-encoder (slower)."
+        ),
     )
     text_fields: tuple[Literal["title", "abstract", "keywords"], ...] = Field(
         default=("title", "abstract", "keywords"), description="Record fields that make up the scored text."

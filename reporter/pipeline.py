@@ -38,8 +38,9 @@ def write_intake(config: Config, intake: IntakeResult) -> dict[str, Path]:
     return {"intake log": path}
 
 
-def run(config: Config, show_progress: bool = True, keep_sentences: bool = False) -> RunResult:
-    """The whole job: intake, enrichment, scoring, analysis, rendering."""
+def run(config: Config, show_progress: bool = True, keep_sentences: bool = False,
+        review_worksheet: bool = False) -> RunResult:
+    """The whole job: intake, enrichment, scoring, analysis, rendering (and the review worksheet if asked)."""
     import datetime as dt
 
     from reporter.analyse import analyse
@@ -54,17 +55,22 @@ def run(config: Config, show_progress: bool = True, keep_sentences: bool = False
     try:
         scores = score(
             intake.records, parts.framework, parts.embedder, config.score, cache=parts.cache,
-            thresholds=parts.thresholds, keep_sentences=keep_sentences, show_progress=show_progress,
+            thresholds=parts.thresholds, keep_sentences=keep_sentences or review_worksheet,
+            show_progress=show_progress,
         )
     finally:
         parts.close()
     goals = tuple((goal.code, goal.short_title) for goal in parts.framework.goals)
+    # Reviewers overrule the machine before any figure is computed; validation below still
+    # measures the machine's own decisions, since that is what its error rates describe.
+    decided, overrides = _apply_review(config, intake, scores)
     findings = analyse(
-        intake.records, scores.table, goals, config.analysis,
+        intake.records, decided, goals, config.analysis,
         config.report.reporting_year, config.report.comparison_years,
         scores.thresholds, scores.policy,
         general_mentions=scores.general_mentions.set_index("record_id")["n_general_mentions"],
     )
+    findings = _with_human_judgement(config, intake, scores, findings, overrides)
     framework_info = parts.framework_info()
     model_info = parts.model_info()
     score_settings = {
@@ -76,12 +82,64 @@ def run(config: Config, show_progress: bool = True, keep_sentences: bool = False
     }
     manifest = _manifest(config, intake, scores, framework_info, model_info, score_settings, findings, started)
     inputs = RenderInputs(
-        findings=findings, records=intake.records, scores=scores.table, intake_log=intake.log,
+        findings=findings, records=intake.records, scores=decided, intake_log=intake.log,
         goals=goals, framework_info=framework_info, model_info=model_info,
         score_settings=score_settings, manifest=manifest, generated_at=started.isoformat(),
     )
     written = render(inputs, config.report, config.output_dir)
+    if review_worksheet:
+        written = {**written, **_write_review_worksheet(config, intake, scores)}
     return RunResult(intake=intake, written=written, scores=scores, findings=findings)
+
+
+def _apply_review(config: Config, intake: IntakeResult, scores):
+    """The score table after the review file's decisions, and the overrides (None without a review file)."""
+    if config.validation.review_file is None:
+        return scores.table, None
+    from reporter.score.review import apply_review, read_review_file
+
+    review = read_review_file(config.validation.review_file, intake.records["record_id"], tuple(scores.thresholds))
+    return apply_review(scores.table, review)
+
+
+def _write_review_worksheet(config: Config, intake: IntakeResult, scores) -> dict[str, Path]:
+    """review-worksheet.csv: the machine's borderline pairs with their evidence, for people to decide."""
+    from reporter.render.worksheet import write_worksheet
+    from reporter.score.review import borderline_pairs
+
+    # Pairs below the threshold have no evidence in the score table; the per-sentence
+    # scores (kept for this) supply their best sentence.
+    sheet = borderline_pairs(scores.table, intake.records, scores.thresholds, sentences=scores.sentences)
+    return write_worksheet(sheet, config.output_dir)
+
+
+def _with_human_judgement(config: Config, intake: IntakeResult, scores, findings, overrides):
+    """Findings plus, where configured, validation on the labelled sample, corrected shares and review counts."""
+    import dataclasses
+
+    import numpy as np
+
+    extra = dict(findings.extra)
+    if overrides is not None:
+        from reporter.score.review import review_summary
+
+        extra["review"] = review_summary(overrides)
+        extra["overrides"] = overrides
+    if config.validation.labelled_sample is not None:
+        from reporter.analyse.correction import EXPLANATION, correct_shares
+
+        validation = validate_run(config, intake, scores)
+        extra["validation"] = validation.to_dict()
+        # Apparent shares from the machine decisions the error rates were measured on.
+        machine = scores.table[scores.table["record_id"].isin(intake.records["record_id"])]
+        shares = machine.groupby("goal", sort=False).agg(n=("is_aligned", "size"), n_aligned=("is_aligned", "sum"))
+        shares = shares.reindex(list(scores.thresholds)).reset_index()
+        rng = np.random.default_rng(config.analysis.seed)
+        extra["corrected_shares"] = correct_shares(
+            shares, validation.pairs, config.analysis.confidence, rng, config.analysis.bootstrap_resamples
+        )
+        extra["correction_explanation"] = EXPLANATION
+    return dataclasses.replace(findings, extra=extra)
 
 
 def _manifest(config, intake, scores, framework_info, model_info, score_settings, findings, started) -> dict:

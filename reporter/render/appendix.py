@@ -9,8 +9,9 @@ from urllib.parse import quote
 import pandas as pd
 
 from reporter.render.context import (
-    Cautions, CountRow, EvidenceGoal, EvidenceRow, InputRow, MethodSection, RenderInputs, SensitivityRow, Table,
+    Cautions, CountRow, EvidenceGoal, EvidenceRow, InputRow, MethodSection, RenderInputs, SensitivityRow,
 )
+from reporter.render.validation_section import build_review_brief, build_validation_brief
 
 POLICY_TEXT = {
     "score_or_mention": "aligned when the alignment score reaches the threshold or the goal is mentioned explicitly",
@@ -22,6 +23,7 @@ COUNTING_TEXT = {
     "fractional": "fractional counting: a publication involving k departments or countries counts 1/k for each",
 }
 STATUS_TEXT = {"merged": "merged", "set_aside": "set aside"}
+REVIEW_TEXT = {True: "included by reviewer", False: "excluded by reviewer"}
 _SENSITIVITY_ORDER = {"low": 0, "chosen": 1, "high": 2}
 
 
@@ -35,28 +37,46 @@ def doi_url(doi: str) -> str:
 
 
 def build_evidence(inputs: RenderInputs, goals: Sequence[tuple[str, str]], cap: int) -> tuple[EvidenceGoal, ...]:
-    """Per goal, the aligned publications with the highest alignment scores, at most `cap` of them."""
-    scores = inputs.scores.loc[inputs.scores["is_aligned"].astype(bool)]
-    scores = scores.assign(goal=scores["goal"].astype(str))
+    """Per goal, the aligned publications with the highest alignment scores, at most `cap` of them.
+
+    With a review file (score columns is_overridden, review_note) every reviewed pair is shown
+    whatever its rank: included ones among the aligned rows, excluded ones in their own list.
+    """
+    table = inputs.scores
+    reviewed = table["is_overridden"].astype(bool) if "is_overridden" in table else pd.Series(False, index=table.index)
+    notes = table["review_note"].fillna("").astype(str) if "review_note" in table else pd.Series("", index=table.index)
+    table = table.assign(goal=table["goal"].astype(str), by_reviewer=reviewed, reviewer_note=notes).sort_values(
+        ["alignment_score", "record_id"], ascending=[False, True], kind="stable")
+    aligned = table["is_aligned"].astype(bool)
     records = inputs.records.set_index("record_id")
     blocks = []
     for code, title in goals:
-        rows = scores.loc[scores["goal"] == code].sort_values(
-            ["alignment_score", "record_id"], ascending=[False, True], kind="stable")
-        if rows.empty:
+        in_goal = table["goal"] == code
+        rows, excluded = table.loc[in_goal & aligned], table.loc[in_goal & ~aligned & table["by_reviewer"]]
+        if rows.empty and excluded.empty:
             continue
-        shown = []
-        for r in rows.head(cap).itertuples():
-            rec = records.loc[r.record_id]
-            shown.append(EvidenceRow(
-                record_id=str(r.record_id), title=str(rec["title"]), year=int(rec["year"]),
-                departments="; ".join(rec["departments"]), doi=str(rec["doi"]), doi_url=doi_url(str(rec["doi"])),
-                alignment_score=float(r.alignment_score), evidence=str(r.evidence), is_explicit=bool(r.is_explicit),
-            ))
+        strongest = rows.head(cap)
+        # Reviewer-included pairs below the cap stay visible: a reader checks the overrides first.
+        pinned = rows.iloc[cap:].loc[lambda f: f["by_reviewer"]]
+        shown = tuple(_evidence_row(r, records) for r in pd.concat([strongest, pinned]).itertuples())
         total = len(rows)
-        note = f"showing the {len(shown)} strongest of {total}" if total > len(shown) else ""
-        blocks.append(EvidenceGoal(goal=code, title=title, rows=tuple(shown), n_total=total, note=note))
+        note = f"showing the {len(strongest)} strongest of {total}" if total > len(strongest) else ""
+        if note and not pinned.empty:
+            note += f" and {len(pinned)} more included by a reviewer"
+        blocks.append(EvidenceGoal(goal=code, title=title, rows=shown, n_total=total, note=note,
+                                   excluded=tuple(_evidence_row(r, records) for r in excluded.itertuples())))
     return tuple(blocks)
+
+
+def _evidence_row(r, records: pd.DataFrame) -> EvidenceRow:
+    rec = records.loc[r.record_id]
+    return EvidenceRow(
+        record_id=str(r.record_id), title=str(rec["title"]), year=int(rec["year"]),
+        departments="; ".join(rec["departments"]), doi=str(rec["doi"]), doi_url=doi_url(str(rec["doi"])),
+        alignment_score=float(r.alignment_score), evidence=str(r.evidence), is_explicit=bool(r.is_explicit),
+        review=REVIEW_TEXT[bool(r.is_aligned)] if r.by_reviewer else "",
+        review_note=str(r.reviewer_note) if r.by_reviewer else "",
+    )
 
 
 def _intake(log: pd.DataFrame) -> tuple[tuple[InputRow, ...], InputRow]:
@@ -109,25 +129,6 @@ def _sensitivity(frame: pd.DataFrame, goals: Sequence[tuple[str, str]]) -> tuple
     return tuple(rows)
 
 
-def _cell_text(value: object) -> str:
-    if isinstance(value, bool) or value is None:
-        return "" if value is None else ("yes" if value else "no")
-    if isinstance(value, float):
-        return "–" if math.isnan(value) else f"{value:.3f}"
-    return str(value)
-
-
-def _table(value: object) -> Table | None:
-    """A validation result of unknown shape (a frame, or a dict of scalars) as display text."""
-    if isinstance(value, pd.DataFrame) and not value.empty:
-        return Table(tuple(str(c).replace("_", " ") for c in value.columns),
-                     tuple(tuple(_cell_text(v) for v in row) for row in value.itertuples(index=False)))
-    if isinstance(value, dict) and value:
-        scalars = [(k, v) for k, v in value.items() if isinstance(v, (int, float, str, bool))]
-        return Table(("measure", "value"), tuple((str(k).replace("_", " "), _cell_text(v)) for k, v in scalars))
-    return None
-
-
 def build_method(inputs: RenderInputs, goals: Sequence[tuple[str, str]]) -> MethodSection:
     findings, settings = inputs.findings, inputs.score_settings
     meta = findings.meta
@@ -157,7 +158,8 @@ def build_method(inputs: RenderInputs, goals: Sequence[tuple[str, str]]) -> Meth
         min_group_size=int(meta.get("min_group_size", 10)),
         fdr=float(meta.get("fdr", math.nan)),
         sensitivity=_sensitivity(findings.sensitivity, goals),
-        validation=_table(findings.extra.get("validation")),
+        validation=build_validation_brief(findings.extra),
+        review=build_review_brief(findings.extra, goals),
         extras=extras,
         methods=tuple((str(k).replace("_", " "), str(v)) for k, v in sorted(dict(meta.get("methods", {})).items())),
     )

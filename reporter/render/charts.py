@@ -34,7 +34,29 @@ def _local_ids(svg: str, prefix: str) -> str:
     return svg
 
 
-def _to_svg(chart: alt.TopLevelMixin, theme: Theme, alt_text: str, name: str) -> Chart:
+_GRADIENT = re.compile(r'<linearGradient id="([^"]+)" x1="([\d.]+)" x2="([\d.]+)" y1="([\d.]+)" y2="([\d.]+)">')
+_BOX_PATH = r'd="M0,0h([\d.]+)v([\d.]+)h-[\d.]+Z" fill="url\(#{}\)"'
+
+
+def _user_space_gradients(svg: str) -> str:
+    """Give legend gradients absolute coordinates: WeasyPrint leaves bounding-box gradients unpainted.
+
+    Vega draws a gradient legend as one rectangle path from the origin, so its width and height
+    turn the 0-1 bounding-box coordinates into user-space ones; browsers draw both forms alike.
+    """
+    def fix(match: re.Match) -> str:
+        gradient, x1, x2, y1, y2 = match.groups()
+        box = re.search(_BOX_PATH.format(re.escape(gradient)), svg)
+        if box is None:
+            return match.group(0)
+        w, h = float(box.group(1)), float(box.group(2))
+        return (f'<linearGradient id="{gradient}" gradientUnits="userSpaceOnUse" x1="{float(x1) * w:g}" '
+                f'x2="{float(x2) * w:g}" y1="{float(y1) * h:g}" y2="{float(y2) * h:g}">')
+
+    return _GRADIENT.sub(fix, svg)
+
+
+def to_svg(chart: alt.TopLevelMixin, theme: Theme, alt_text: str, name: str) -> Chart:
     import vl_convert  # heavy; imported when a chart is actually drawn
 
     pal = theme.palette
@@ -52,7 +74,7 @@ def _to_svg(chart: alt.TopLevelMixin, theme: Theme, alt_text: str, name: str) ->
     )
     spec.pop("$schema", None)  # a URL only; vl-convert bundles its own schema
     spec["description"] = alt_text
-    svg = _local_ids(vl_convert.vegalite_to_svg(spec), f"chart-{name}")
+    svg = _user_space_gradients(_local_ids(vl_convert.vegalite_to_svg(spec), f"chart-{name}"))
     lowered = svg.lower()
     # vl-convert escapes data values; this guards against a spec change that would embed active content.
     bad = [token for token in _FORBIDDEN_SVG if token in lowered]
@@ -103,7 +125,7 @@ def draw_goal_profile(rows: Sequence[GoalRow], theme: Theme) -> Chart:
         f"split into explicit mentions and content alone, with interval bars."
         + (f" Largest: goal {top.goal} at {fmt_share(top.share)}." if top is not None else "")
     )
-    return _to_svg(chart, theme, alt_text, "goal-profile")
+    return to_svg(chart, theme, alt_text, "goal-profile")
 
 
 def draw_change(by_year: pd.DataFrame, goals: Sequence[tuple[str, str]], theme: Theme) -> Chart:
@@ -136,7 +158,7 @@ def draw_change(by_year: pd.DataFrame, goals: Sequence[tuple[str, str]], theme: 
         f"Small multiples, one per goal: goal share per year from {years[0]} to {years[-1]} "
         "as a line inside its interval band; crosses mark years with too few publications."
     )
-    return _to_svg(chart, theme, alt_text, "change")
+    return to_svg(chart, theme, alt_text, "change")
 
 
 def _cells_frame(rows: Sequence[GroupRow], value: str) -> pd.DataFrame:
@@ -180,7 +202,7 @@ def draw_group_heatmap(
         + (f" Groups with fewer than {min_group_size} publications ({n_small} of {len(rows)}) are grey and "
            f"marked n<{min_group_size}." if n_small else "")
     )
-    return _to_svg(chart, theme, alt_text, name)
+    return to_svg(chart, theme, alt_text, name)
 
 
 def draw_collaboration(rows: Sequence[GroupRow], goals: Sequence[tuple[str, str]], theme: Theme) -> Chart:
@@ -205,7 +227,7 @@ def draw_collaboration(rows: Sequence[GroupRow], goals: Sequence[tuple[str, str]
     chart = alt.layer(bars, rules).properties(width=WIDTH, height=170)
     alt_text = (f"Grouped bars: goal shares for {' and '.join(domain).lower()} publications, "
                 "one pair per goal, with interval bars.")
-    return _to_svg(chart, theme, alt_text, "collaboration")
+    return to_svg(chart, theme, alt_text, "collaboration")
 
 
 def draw_cooccurrence(pairs: pd.DataFrame, goals: Sequence[tuple[str, str]], theme: Theme) -> Chart:
@@ -222,6 +244,6 @@ def draw_cooccurrence(pairs: pd.DataFrame, goals: Sequence[tuple[str, str]], the
     ).properties(width=alt.Step(22), height=alt.Step(22))
     alt_text = ("Heat map of goal pairs: darker cells mean more publications aligned with both goals; "
                 "the most frequent pairs are listed beside it.")
-    return _to_svg(chart, theme, alt_text, "together")
+    return to_svg(chart, theme, alt_text, "together")
 
 

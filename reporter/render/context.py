@@ -8,12 +8,15 @@ and charts are SVG strings drawn before rendering.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import pandas as pd
 from markupsafe import Markup
 
 from reporter.analyse.findings import Findings
+
+if TYPE_CHECKING:  # context_validation imports Chart from here; annotations are strings anyway
+    from reporter.render.context_validation import ReviewBrief, ValidationBrief, ValidationSection
 
 
 def _h(text: str, **kwargs: Any) -> Any:
@@ -178,6 +181,8 @@ class EvidenceRow:
     alignment_score: float = _h("The publication's alignment score for the goal")
     evidence: str = _h("Best evidence sentence ('' when none)")
     is_explicit: bool = _h("True when the publication mentions the goal explicitly")
+    review: str = _h("'included by reviewer', 'excluded by reviewer' or '' when not reviewed", default="")
+    review_note: str = _h("The reviewer's note from the review file ('' when none)", default="")
 
 
 @dataclass(frozen=True)
@@ -187,6 +192,8 @@ class EvidenceGoal:
     rows: tuple[EvidenceRow, ...] = _h("The strongest aligned publications, highest score first")
     n_total: int = _h("Publications aligned with the goal")
     note: str = _h("'showing the N strongest of M' when rows were capped, else ''")
+    excluded: tuple[EvidenceRow, ...] = _h("Pairs a reviewer excluded for this goal, highest score first",
+                                           default=())
 
 
 @dataclass(frozen=True)
@@ -214,12 +221,6 @@ class SensitivityRow:
 
 
 @dataclass(frozen=True)
-class Table:
-    columns: tuple[str, ...] = _h("Column headings")
-    rows: tuple[tuple[str, ...], ...] = _h("Cells as display text, formatted in Python")
-
-
-@dataclass(frozen=True)
 class MethodSection:
     inputs: tuple[InputRow, ...] = _h("Per input file: records read, kept, merged, set aside")
     intake_totals: InputRow = _h("The same counts over all files")
@@ -236,8 +237,9 @@ class MethodSection:
     min_group_size: int = _h("Groups with fewer publications are marked too small")
     fdr: float = _h("False discovery rate for changes")
     sensitivity: tuple[SensitivityRow, ...] = _h("Goal shares at the threshold -/+ one step")
-    validation: Table | None = _h("Agreement with a labelled sample, when analyse measured it")
-    extras: tuple[CountRow, ...] = _h("Other counts analyse reported (e.g. review overrides)")
+    validation: ValidationBrief | None = _h("Macro-F1 on the labelled sample and a pointer to its section, or None")
+    review: ReviewBrief | None = _h("Counts of reviewer overrides, per goal, or None without a review file")
+    extras: tuple[CountRow, ...] = _h("Other scalar counts analyse put in Findings.extra")
     methods: tuple[tuple[str, str], ...] = _h("(what, method) pairs from analyse, e.g. the interval method")
 
 
@@ -273,4 +275,5 @@ class ReportContext:
     method: MethodSection = _h("How the figures were made")
     cautions: Cautions = _h("Limits and cautions")
     evidence: tuple[EvidenceGoal, ...] = _h("Evidence appendix, one block per goal with aligned publications")
+    validation: ValidationSection | None = _h("Validation against the labelled sample, or None when none was given")
     theme: ThemeView = _h("Stylesheets and page settings of the theme")

@@ -13,7 +13,8 @@ import pandas as pd
 
 from reporter.records import ENRICHED_COLUMNS, INTAKE_LOG_COLUMNS, RECORD_COLUMNS, SCORE_COLUMNS, require_columns
 from reporter.render import charts
-from reporter.render.appendix import build_cautions, build_evidence, build_method
+from reporter.render import validation_section
+from reporter.render.appendix import POLICY_TEXT, build_cautions, build_evidence, build_method
 from reporter.render.branding import build_branding, build_theme_view
 from reporter.render.context import (
     Cell, ChangeRow, ChangeSection, DepartmentSection, GoalProfile, GoalRow, GroupRow, PairRow,
@@ -25,7 +26,7 @@ N_LEADING_GOALS = 3
 N_COUNTRIES_SHOWN = 15
 N_PAIRS_SHOWN = 10
 
-#: Sections in reading order: (anchor, heading). Headings are the tests' landmarks too.
+#: Sections every report has, in reading order: (anchor, heading, partial). Headings are the tests' landmarks too.
 SECTIONS = (
     ("at-a-glance", "At a glance", "_summary.html"),
     ("goal-profile", "Goal profile", "_goal_profile.html"),
@@ -37,6 +38,15 @@ SECTIONS = (
     ("cautions", "Limits and cautions", "_cautions.html"),
     ("evidence", "Evidence appendix", "_evidence.html"),
 )
+#: Shown right after the method section when a labelled sample was measured.
+VALIDATION_SECTION = (validation_section.ANCHOR, validation_section.HEADING, validation_section.PARTIAL)
+
+
+def _sections(has_validation: bool) -> tuple[SectionLink, ...]:
+    sections = list(SECTIONS)
+    if has_validation:
+        sections.insert([anchor for anchor, _t, _p in SECTIONS].index("method") + 1, VALIDATION_SECTION)
+    return tuple(SectionLink(*section) for section in sections)
 
 
 def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: str = "screen") -> ReportContext:
@@ -74,6 +84,7 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
         chart=charts.draw_change(findings.by_year, goals, theme) if n_years > 1 else None,
         fdr=float(meta.get("fdr", math.nan)),
     )
+    validation = validation_section.build_validation(findings.extra, goals, theme, POLICY_TEXT)
     return ReportContext(
         title=report.title,
         branding=build_branding(report),
@@ -81,7 +92,7 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
         years=years,
         generated_at=inputs.generated_at,
         software=f"Waymark {inputs.manifest.get('waymark_version', '')}".strip(),
-        sections=tuple(SectionLink(*section) for section in SECTIONS),
+        sections=_sections(validation is not None),
         summary=summary,
         goal_profile=GoalProfile(rows=profile_rows, chart=charts.draw_goal_profile(profile_rows, theme)),
         change=change,
@@ -91,6 +102,7 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
         method=build_method(inputs, goals),
         cautions=build_cautions(inputs),
         evidence=build_evidence(inputs, goals, theme.evidence_per_goal),
+        validation=validation,
         theme=build_theme_view(theme, report, medium),
     )
 

@@ -1,4 +1,4 @@
-"""SQLite embedding cache keyed by model checksum + text hash.
+"""SQLite embedding cache keyed by model checksum + text hash; sentence splits keyed by splitter + text hash.
 
 Each batch is committed as soon as it is embedded, so a run killed mid-way
 keeps what it finished and the next run resumes from there. WAL journaling
@@ -20,8 +20,17 @@ CREATE TABLE IF NOT EXISTS embeddings (
     text_hash BLOB NOT NULL,
     vector BLOB NOT NULL,
     PRIMARY KEY (model, text_hash)
+) WITHOUT ROWID;
+CREATE TABLE IF NOT EXISTS splits (
+    splitter TEXT NOT NULL,
+    text_hash BLOB NOT NULL,
+    sentences TEXT NOT NULL,
+    PRIMARY KEY (splitter, text_hash)
 ) WITHOUT ROWID
 """
+# Sentence splitting costs about as much per abstract as embedding one sentence; a warm re-run
+# reads the splits back instead. Split sentences never hold a newline (whitespace is collapsed).
+_SPLIT_SEP = "\n"
 _CHUNK = 500  # stays under SQLite's host-parameter limit
 
 
@@ -40,7 +49,7 @@ class EmbeddingCache:
         self._db = sqlite3.connect(path)
         self._db.execute("PRAGMA journal_mode=WAL")
         self._db.execute("PRAGMA synchronous=NORMAL")
-        self._db.execute(_SCHEMA)
+        self._db.executescript(_SCHEMA)
         self._db.commit()
 
     def get_many(self, hashes: Sequence[bytes]) -> dict[bytes, np.ndarray]:
@@ -62,6 +71,26 @@ class EmbeddingCache:
         self._db.executemany(
             "INSERT OR REPLACE INTO embeddings (model, text_hash, vector) VALUES (?, ?, ?)",
             [(self._model, key, np.asarray(vec, dtype=np.float32).tobytes()) for key, vec in items],
+        )
+        self._db.commit()
+
+    def get_splits(self, splitter: str, hashes: Sequence[bytes]) -> dict[bytes, list[str]]:
+        """Stored sentence splits by text hash, for the splitter named (its rules and version)."""
+        found: dict[bytes, list[str]] = {}
+        for start in range(0, len(hashes), _CHUNK):
+            chunk = list(hashes[start : start + _CHUNK])
+            marks = ",".join("?" * len(chunk))
+            rows = self._db.execute(
+                f"SELECT text_hash, sentences FROM splits WHERE splitter = ? AND text_hash IN ({marks})",
+                [splitter, *chunk],
+            )
+            found.update((key, text.split(_SPLIT_SEP) if text else []) for key, text in rows)
+        return found
+
+    def put_splits(self, splitter: str, items: Iterable[tuple[bytes, list[str]]]) -> None:
+        self._db.executemany(
+            "INSERT OR REPLACE INTO splits (splitter, text_hash, sentences) VALUES (?, ?, ?)",
+            [(splitter, key, _SPLIT_SEP.join(sentences)) for key, sentences in items],
         )
         self._db.commit()
 

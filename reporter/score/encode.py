@@ -52,6 +52,8 @@ def embed_texts(
     stats.n_cache_hits += len(found)
     vectors: list[np.ndarray | None] = [found.get(k) for k in keys]
     missing = [i for i, v in enumerate(vectors) if v is None]
+    # Similar lengths per model call mean little padding: the model pads each batch to its longest text.
+    missing.sort(key=lambda i: len(distinct[i]))
     for start in range(0, len(missing), batch_size):
         chunk = missing[start : start + batch_size]
         began = time.perf_counter()

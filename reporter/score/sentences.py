@@ -36,6 +36,8 @@ class SentenceSplitter:
 
     def __init__(self) -> None:
         self._segmenter = pysbd.Segmenter(language="en", clean=False)
+        # Names the rules in use: splits stored under another name (another pysbd) are not reused.
+        self.name = f"pysbd-{pysbd.__version__}:en"
 
     def split(self, text: str) -> list[str]:
         text = " ".join(text.split())
@@ -44,11 +46,26 @@ class SentenceSplitter:
         return [s.strip() for s in self._segmenter.segment(text) if s.strip()]
 
 
+class KnownSplits:
+    """A splitter that answers from splits found beforehand (the cache) and keeps what it had to split."""
+
+    def __init__(self, splitter: SentenceSplitter, known: dict[str, list[str]]):
+        self.name = splitter.name
+        self._splitter, self._known = splitter, known
+        self.new: dict[str, list[str]] = {}  # text -> sentences split here, for the caller to store
+
+    def split(self, text: str) -> list[str]:
+        found = self._known.get(text)
+        if found is None:
+            found = self._known[text] = self.new[text] = self._splitter.split(text)
+        return list(found)
+
+
 def record_units(
     record_id: str,
     fields: dict[str, object],
     text_fields: Sequence[str],
-    splitter: SentenceSplitter,
+    splitter: SentenceSplitter | KnownSplits,
 ) -> list[TextUnit]:
     """The text units of one record, in reading order: title, abstract sentences, keywords."""
     pieces: list[tuple[str, str]] = []

@@ -1,0 +1,368 @@
+"""Speed and memory of the scoring stage and the stages after it, on a synthetic corpus (issue #7).
+
+    python bench/benchmark.py --sizes 1000 10000            # cold, warm and bare encode per size
+    python bench/benchmark.py --sizes 100000 --prefill      # warm path and memory only (see README)
+    python bench/benchmark.py --int8 --int8-sentences 3000  # int8 vs fp32: throughput and demo agreement
+
+Each size runs in its own subprocess, so the peak RSS reported is that size's own. Results are
+printed as a table and written as JSON to bench/results/ (gitignored).
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import resource
+import subprocess
+import sys
+import time
+import tracemalloc
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+ROOT = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(ROOT))
+RESULTS = ROOT / "bench" / "results"
+
+# --- synthetic corpus ------------------------------------------------------------------------
+# A fixed vocabulary composed by part of speech, so sentences read like (vague) academic prose and
+# tokenise to realistic lengths. Topic nouns give the goal space something to align with.
+_WORDS = {
+    "det": "the a this our each every one their".split(),
+    "adj": ("rural urban regional national local coastal low-income informal public private sustainable "
+            "longitudinal comparative empirical significant persistent structural marginal digital "
+            "renewable affordable chronic early secondary municipal agricultural industrial").split(),
+    "noun": ("study analysis model framework survey household community school clinic farm market policy "
+             "programme intervention network dataset cohort region district city village system sector "
+             "outcome indicator pattern trend effect approach method sample process strategy").split(),
+    "topic": ("water sanitation poverty hunger nutrition health vaccination education literacy gender "
+              "equality energy solar electricity employment wages infrastructure broadband inequality "
+              "migration housing transport waste recycling emissions climate adaptation ocean fisheries "
+              "forests biodiversity corruption justice governance partnerships finance drought flooding "
+              "malaria tuberculosis teachers women girls wetlands soil crops").split(),
+    "verb": ("shows reduces improves affects explains predicts supports measures compares estimates "
+             "examines reveals shapes limits increases links tracks informs").split(),
+    "prep": "in for of across among within between under through after".split(),
+    "conj": "and while whereas because although".split(),
+}
+_SLOTS = ("det", "adj", "noun", "prep", "topic", "verb", "det", "topic", "noun", "prep", "adj", "topic", "conj")
+_DEPARTMENTS = tuple(f"Department {name}" for name in
+                     "Alder Birch Cedar Dogwood Elm Fir Gorse Hazel Ivy Juniper Larch Maple".split())
+_PARTNERS = ("DE", "FR", "ES", "KE", "BR", "IN", "US", "GB", "NL", "ZA", "VN", "PE")
+SHARED_POOL = 400  # stock sentences ("Implications for practice are discussed.") shared across papers
+SHARE_REUSED = 0.08  # share of abstract sentences drawn from the stock pool: real corpora repeat some
+
+
+def _sentence(rng: np.random.Generator, n_words: int, terminal: bool) -> str:
+    start = int(rng.integers(len(_SLOTS)))
+    words = [_WORDS[_SLOTS[(start + i) % len(_SLOTS)]] for i in range(n_words)]
+    picks = rng.integers(0, 1 << 30, size=n_words)
+    text = " ".join(pool[p % len(pool)] for pool, p in zip(words, picks))
+    text = text[0].upper() + text[1:]
+    return text + "." if terminal else text
+
+
+def make_corpus(n: int, seed: int = 7) -> tuple[pd.DataFrame, pd.DataFrame]:
+    """n publications (RECORD_COLUMNS + ENRICHED_COLUMNS) and their intake log, from a seeded generator."""
+    from reporter.records import ENRICHED_COLUMNS, INTAKE_LOG_COLUMNS, RECORD_COLUMNS
+
+    rng = np.random.default_rng(seed)
+    pool = [_sentence(rng, int(rng.integers(15, 31)), True) for _ in range(SHARED_POOL)]
+    rows = []
+    for i in range(n):
+        sentences = []
+        for _ in range(int(rng.integers(6, 11))):
+            if rng.random() < SHARE_REUSED:
+                sentences.append(pool[int(rng.integers(len(pool)))])
+            else:
+                sentences.append(_sentence(rng, int(rng.integers(15, 31)), True))
+        partners = tuple(sorted(set(rng.choice(_PARTNERS, size=int(rng.integers(0, 3))).tolist())))
+        rows.append({
+            "record_id": f"bench:{i:06d}", "source_file": "bench.bib", "source_line": i + 1, "format": "bibtex",
+            "native_id": f"p{i}", "title": _sentence(rng, int(rng.integers(8, 16)), False),
+            "abstract": " ".join(sentences),
+            "keywords": tuple(rng.choice(_WORDS["topic"], size=3, replace=False).tolist()),
+            "year": int(rng.integers(2022, 2026)), "doi": f"10.9999/bench.{i}", "authors": ("Doe, Alex",),
+            "affiliations": ("Bench University",),
+            "departments": tuple(sorted(set(rng.choice(_DEPARTMENTS, size=int(rng.integers(1, 3))).tolist()))),
+            "orcids": (), "doc_type": "article", "venue": "Journal of Benchmarks", "language": "en",
+            "has_abstract": True, "countries": tuple(sorted({"IE", *partners})), "partner_countries": partners,
+            "is_international": bool(partners), "is_english": True,
+        })
+    records = pd.DataFrame(rows, columns=[*RECORD_COLUMNS, *ENRICHED_COLUMNS])
+    log = records.loc[:, ["record_id", "source_file", "source_line", "format", "native_id", "title", "year"]]
+    log = log.assign(status="kept", reason="", merged_into="", flags="").loc[:, list(INTAKE_LOG_COLUMNS)]
+    return records, log
+
+
+def scored_texts(records: pd.DataFrame, framework, embedder, text_fields) -> list[str]:
+    """The distinct texts scoring embeds (descriptors, background, sentences), found independently."""
+    from reporter.score.sentences import SentenceSplitter, fit_to_model, record_units
+
+    splitter = SentenceSplitter()
+    texts = [d for goal in framework.goals for d in goal.descriptors] + list(framework.background)
+    for row in records.itertuples(index=False):
+        fields = {"title": row.title, "abstract": row.abstract, "keywords": row.keywords}
+        units = fit_to_model(record_units(row.record_id, fields, text_fields, splitter),
+                             embedder.info.max_tokens, embedder.count_tokens)
+        texts.extend(u.text for u in units)
+    return list(dict.fromkeys(texts))
+
+
+# --- one size, in its own process ------------------------------------------------------------
+
+
+def _rss_mib() -> float:
+    return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024  # Linux reports KiB
+
+
+def _frame_mib(frame: pd.DataFrame) -> float:
+    return float(frame.memory_usage(deep=True).sum()) / 2**20
+
+
+def run_size(n: int, prefill: bool, threads: int | None, backend: str, tracemalloc_warm: bool) -> dict:
+    from reporter.config import ReportConfig, ScoreConfig
+    from reporter.score import load_scoring_parts, score
+
+    out: dict = {"n_publications": n, "mode": "prefilled-warm" if prefill else "full", "backend": backend}
+    began = time.perf_counter()
+    records, log = make_corpus(n)
+    out["seconds_corpus"] = round(time.perf_counter() - began, 2)
+    cache_path = RESULTS / f"cache-{n}-{backend}.sqlite"
+    for suffix in ("", "-wal", "-shm"):
+        Path(f"{cache_path}{suffix}").unlink(missing_ok=True)
+    cfg = ScoreConfig(cache=cache_path, threads=threads, backend=backend)
+    parts = load_scoring_parts(cfg)
+    framework, embedder = parts.framework, parts.embedder
+    out["rss_mib_after_model_load"] = round(_rss_mib(), 1)
+    distinct = scored_texts(records, framework, embedder, cfg.text_fields)
+    out["n_distinct_texts"] = len(distinct)
+    embedder.encode(distinct[:64])  # warm-up: first calls pay for lazy initialisation
+
+    if prefill:
+        # Stand-in vectors under the real model key: the warm path reads the cache exactly as it
+        # would after a real cold run, but the scores themselves mean nothing.
+        rng = np.random.default_rng(1)
+        keys = [_hash(t) for t in distinct]
+        for start in range(0, len(keys), 20000):
+            block = rng.standard_normal((len(keys[start:start + 20000]), embedder.info.dimension)).astype(np.float32)
+            block /= np.linalg.norm(block, axis=1, keepdims=True)
+            parts.cache.put_many(zip(keys[start:start + 20000], block))
+    else:
+        began = time.perf_counter()
+        cold = score(records, framework, embedder, cfg, cache=parts.cache, thresholds=parts.thresholds,
+                     show_progress=False)
+        out["seconds_score_cold"] = round(time.perf_counter() - began, 2)
+        out["cold_stats"] = cold.stats
+        out["rss_mib_after_cold_score"] = round(_rss_mib(), 1)
+        # Duplicates embedded once: every distinct text encoded exactly once, none twice.
+        out["n_cache_rows"] = parts.cache.count()
+        out["duplicates_embedded_once"] = cold.stats["n_encoded"] == len(distinct) == out["n_cache_rows"]
+        del cold
+    parts.cache.close()
+
+    cache = _reopen(cfg, embedder)
+    if tracemalloc_warm:
+        tracemalloc.start()
+    began = time.perf_counter()
+    warm = score(records, framework, embedder, cfg, cache=cache, thresholds=parts.thresholds, show_progress=False)
+    out["seconds_score_warm"] = round(time.perf_counter() - began, 2)
+    if tracemalloc_warm:
+        out["tracemalloc_peak_mib_warm_score"] = round(tracemalloc.get_traced_memory()[1] / 2**20, 1)
+        tracemalloc.stop()
+    cache.close()
+    out["warm_stats"] = warm.stats
+    out["rss_mib_after_warm_score"] = round(_rss_mib(), 1)
+    out["mib_score_table"] = round(_frame_mib(warm.table), 1)
+    out["mib_evidence_table"] = round(_frame_mib(warm.evidence), 1)
+    out["n_evidence_rows"] = len(warm.evidence)
+    out["n_aligned_pairs"] = int(warm.table["is_aligned"].sum())
+
+    report = ReportConfig(institution="Bench University", home_country="IE", reporting_year=2025,
+                          comparison_years=(2022, 2023, 2024), output=RESULTS / f"report-{n}")
+    out.update(_analyse_and_render(records, log, warm, framework, embedder, report))
+    out["rss_mib_peak_pipeline"] = round(_rss_mib(), 1)
+
+    if not prefill:
+        out.update(_bare_encode(distinct, embedder.info.path))
+        out["ratio_pipeline_over_bare"] = round(out["seconds_bare_encode"] / out["seconds_score_cold"], 3)
+        out["ratio_warm_speedup"] = round(out["seconds_score_cold"] / out["seconds_score_warm"], 1)
+        out["seconds_cold_total"] = round(out["seconds_score_cold"] + out["seconds_analyse"] + out["seconds_render"], 2)
+        out["share_render_of_cold_total"] = round(out["seconds_render"] / out["seconds_cold_total"], 4)
+    out["rss_mib_peak_process"] = round(_rss_mib(), 1)
+    return out
+
+
+def _hash(text: str) -> bytes:
+    from reporter.score.cache import text_hash
+
+    return text_hash(text)
+
+
+def _reopen(cfg, embedder):
+    from reporter.score.cache import EmbeddingCache
+
+    return EmbeddingCache(Path(cfg.cache), embedder.info.checksum, embedder.info.dimension)
+
+
+def _analyse_and_render(records, log, scores, framework, embedder, report) -> dict:
+    from reporter.analyse import analyse
+    from reporter.render import RenderInputs, render
+
+    goals = tuple((goal.code, goal.short_title) for goal in framework.goals)
+    began = time.perf_counter()
+    findings = analyse(records, scores.table, goals, _analysis_config(), report.reporting_year,
+                       report.comparison_years, scores.thresholds, scores.policy,
+                       general_mentions=scores.general_mentions)
+    seconds_analyse = time.perf_counter() - began
+    info = embedder.info
+    inputs = RenderInputs(
+        findings=findings, records=records, scores=scores.table, intake_log=log, goals=goals,
+        framework_info={"id": framework.id, "title": framework.title, "version": framework.version,
+                        "checksum": framework.checksum},
+        model_info={"id": info.id, "checksum": info.checksum, "backend": info.backend},
+        score_settings={"threshold": 0.6, "thresholds": scores.thresholds, "policy": scores.policy,
+                        "text_fields": ["title", "abstract", "keywords"], "method": scores.method},
+        manifest={"benchmark": True}, generated_at="2025-01-01T00:00:00+00:00",
+    )
+    began = time.perf_counter()
+    written = render(inputs, report, report.output)
+    seconds_render = time.perf_counter() - began
+    html = written["report.html"].read_text(encoding="utf-8")
+    return {
+        "seconds_analyse": round(seconds_analyse, 2),
+        "seconds_render": round(seconds_render, 2),
+        "mib_report_html": round(written["report.html"].stat().st_size / 2**20, 2),
+        "mib_report_pdf": round(written["report.pdf"].stat().st_size / 2**20, 2),
+        "mib_data_exports": round(sum(p.stat().st_size for k, p in written.items() if k.startswith("data/")) / 2**20, 1),
+        "evidence_appendix_capped": "strongest of" in html,
+    }
+
+
+def _analysis_config():
+    from reporter.config import AnalysisConfig
+
+    return AnalysisConfig()
+
+
+def _bare_encode(texts: list[str], model_path: str) -> dict:
+    """The same texts through SentenceTransformer.encode alone: the floor scoring is measured against."""
+    from sentence_transformers import SentenceTransformer
+
+    model = SentenceTransformer(model_path, device="cpu", local_files_only=True)
+    model.encode(texts[:64], batch_size=64)
+    began = time.perf_counter()
+    model.encode(texts, batch_size=64, show_progress_bar=False)
+    seconds = time.perf_counter() - began
+    return {"seconds_bare_encode": round(seconds, 2), "bare_sentences_per_second": round(len(texts) / seconds, 1)}
+
+
+# --- int8 against fp32 -----------------------------------------------------------------------
+
+
+def run_int8(n_sentences: int, threads: int | None) -> dict:
+    """Throughput of both precisions on the same sentences, and agreement of decisions on the demo."""
+    from reporter.config import load_config
+    from reporter.pipeline import run_intake
+    from reporter.score import score
+    from reporter.score.embedder import SentenceEmbedder
+    from reporter.score.framework import load_framework
+    from reporter.score.quantised import QuantisedEmbedder
+
+    fp32, int8 = SentenceEmbedder(threads=threads), QuantisedEmbedder(threads=threads)
+    records, _ = make_corpus(max(50, n_sentences // 7))
+    texts = scored_texts(records, load_framework("un-sdg-2030"), fp32, ("title", "abstract", "keywords"))
+    texts = texts[-n_sentences:]  # corpus sentences, not descriptors
+    out: dict = {"n_sentences": len(texts), "checksum_fp32": fp32.info.checksum, "checksum_int8": int8.info.checksum}
+    vectors = {}
+    for name, model in (("fp32", fp32), ("int8", int8)):
+        model.encode(texts[:64])
+        began = time.perf_counter()
+        vectors[name] = model.encode(texts)
+        out[f"sentences_per_second_{name}"] = round(len(texts) / (time.perf_counter() - began), 1)
+    out["throughput_ratio_int8_over_fp32"] = round(out["sentences_per_second_int8"] / out["sentences_per_second_fp32"], 3)
+    cosine = np.sum(vectors["fp32"] * vectors["int8"], axis=1)  # both unit length
+    out["cosine_fp32_int8_mean"] = round(float(cosine.mean()), 4)
+    out["cosine_fp32_int8_p05"] = round(float(np.quantile(cosine, 0.05)), 4)
+
+    config = load_config(ROOT / "example_input" / "waymark.toml")
+    intake = run_intake(config)
+    framework = load_framework(config.score.framework)
+    tables = {}
+    for name, model in (("fp32", fp32), ("int8", int8)):
+        result = score(intake.records, framework, model, config.score, cache=None, show_progress=False)
+        tables[name] = result.table.set_index(["record_id", "goal"])["is_aligned"]
+    both = pd.concat(tables, axis=1)
+    same = both["fp32"] == both["int8"]
+    out["demo_n_publications"] = int(len(intake.records))
+    out["demo_n_aligned_fp32"] = int(both["fp32"].sum())
+    out["demo_n_aligned_int8"] = int(both["int8"].sum())
+    out["demo_agreement_pairs"] = round(float(same.mean()), 4)
+    out["demo_agreement_publications"] = round(float(same.groupby(level="record_id").all().mean()), 4)
+    out["meets_targets"] = out["throughput_ratio_int8_over_fp32"] >= 1.8 and out["demo_agreement_pairs"] >= 0.99
+    return out
+
+
+# --- driver ----------------------------------------------------------------------------------
+
+_TABLE = (
+    ("publications", "n_publications"), ("mode", "mode"), ("distinct texts", "n_distinct_texts"),
+    ("cold score s", "seconds_score_cold"), ("warm score s", "seconds_score_warm"),
+    ("analyse s", "seconds_analyse"), ("render s", "seconds_render"),
+    ("bare encode s", "seconds_bare_encode"), ("bare sent/s", "bare_sentences_per_second"),
+    ("pipeline/bare", "ratio_pipeline_over_bare"), ("warm speed-up", "ratio_warm_speedup"),
+    ("render share", "share_render_of_cold_total"), ("peak RSS MiB", "rss_mib_peak_pipeline"),
+    ("duplicates once", "duplicates_embedded_once"), ("appendix capped", "evidence_appendix_capped"),
+)
+
+
+def _print_table(results: list[dict]) -> None:
+    width = max(len(label) for label, _ in _TABLE)
+    for label, key in _TABLE:
+        cells = "".join(f"{str(r.get(key, '-')):>16}" for r in results)
+        print(f"{label:<{width}}{cells}")
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = argparse.ArgumentParser(description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter)
+    parser.add_argument("--sizes", type=int, nargs="*", default=[1000, 10000])
+    parser.add_argument("--prefill", action="store_true",
+                        help="fill the cache with stand-in vectors and time only the warm path (for sizes too large to embed)")
+    parser.add_argument("--threads", type=int, default=None)
+    parser.add_argument("--backend", default="embedding", choices=("embedding", "embedding-int8"))
+    parser.add_argument("--tracemalloc", action="store_true", help="also trace Python allocations in the warm run")
+    parser.add_argument("--int8", action="store_true", help="compare int8 with fp32 instead of timing sizes")
+    parser.add_argument("--int8-sentences", type=int, default=3000)
+    parser.add_argument("--one", type=int, default=None, help=argparse.SUPPRESS)
+    args = parser.parse_args(argv)
+    RESULTS.mkdir(parents=True, exist_ok=True)
+    stamp = time.strftime("%Y%m%d-%H%M%S")
+    if args.int8:
+        result = run_int8(args.int8_sentences, args.threads)
+        print(json.dumps(result, indent=2))
+        (RESULTS / f"int8-{stamp}.json").write_text(json.dumps(result, indent=2) + "\n", encoding="utf-8")
+        return 0
+    if args.one is not None:
+        result = run_size(args.one, args.prefill, args.threads, args.backend, args.tracemalloc)
+        print(json.dumps(result))
+        return 0
+    results = []
+    for n in args.sizes:
+        command = [sys.executable, __file__, "--one", str(n), "--backend", args.backend]
+        command += ["--prefill"] * args.prefill + ["--tracemalloc"] * args.tracemalloc
+        command += ["--threads", str(args.threads)] if args.threads else []
+        done = subprocess.run(command, check=True, stdout=subprocess.PIPE, text=True, env={**os.environ})
+        results.append(json.loads(done.stdout.strip().splitlines()[-1]))
+        print(json.dumps(results[-1]), file=sys.stderr)
+    _print_table(results)
+    path = RESULTS / f"benchmark-{stamp}.json"
+    path.write_text(json.dumps(results, indent=2) + "\n", encoding="utf-8")
+    print(f"written: {path}")
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

@@ -1,0 +1,154 @@
+"""The demo report as a reader gets it: README command (1)'s build, opened and read back."""
+
+import csv
+import io
+import json
+import re
+from html.parser import HTMLParser
+
+import pytest
+from pypdf import PdfReader
+
+pytestmark = pytest.mark.model
+
+SECTIONS = (
+    "At a glance", "Goal profile", "Change over time", "Departments", "International partners",
+    "Goals studied together", "How the figures were made", "Limits and cautions", "Evidence appendix",
+)
+CAUTIONS = ("says nothing about the work's impact, quality", "Leiden Manifesto",
+            "must not be the sole basis for funding, hiring or promotion")
+
+
+class _Collector(HTMLParser):
+    def __init__(self):
+        super().__init__()
+        self.headings, self.urls, self.text, self._in = [], [], [], None
+
+    def handle_starttag(self, tag, attrs):
+        attrs = dict(attrs)
+        if tag in ("h1", "h2"):
+            self._in = tag
+            self.headings.append("")
+        for key in ("src", "href", "data", "poster"):
+            if attrs.get(key):
+                self.urls.append((tag, attrs[key]))
+
+    def handle_endtag(self, tag):
+        if tag == self._in:
+            self._in = None
+
+    def handle_data(self, data):
+        self.text.append(data)
+        if self._in:
+            self.headings[-1] += data
+
+
+@pytest.fixture(scope="module")
+def html(demo_build):
+    return (demo_build.out / "report.html").read_text(encoding="utf-8")
+
+
+@pytest.fixture(scope="module")
+def parsed(html):
+    collector = _Collector()
+    collector.feed(html)
+    return collector
+
+
+@pytest.fixture(scope="module")
+def findings(demo_build):
+    return json.loads((demo_build.out / "data" / "findings.json").read_text(encoding="utf-8"))
+
+
+@pytest.fixture(scope="module")
+def pdf_pages(demo_build):
+    reader = PdfReader(str(demo_build.out / "report.pdf"))
+    return [page.extract_text() or "" for page in reader.pages]
+
+
+def _plain(text):
+    return re.sub(r"\s+", " ", text)
+
+
+def test_every_output_is_written(demo_build):
+    for name in ("report.html", "report.pdf", "intake-log.csv", "manifest.json", "data/scores.csv",
+                 "data/evidence.csv", "data/findings.json"):
+        assert (demo_build.out / name).stat().st_size > 0, name
+    assert "report.pdf" in demo_build.stdout and "Scored 447 publications" in demo_build.stdout
+
+
+def test_html_has_every_section_and_the_cautions(parsed):
+    headings = [h.strip() for h in parsed.headings]
+    for title in SECTIONS:
+        assert title in headings, f"missing section {title!r}"
+    text = _plain(" ".join(parsed.text))
+    for phrase in CAUTIONS:
+        assert phrase in text
+
+
+def test_html_references_no_remote_resource(parsed):
+    for tag, url in parsed.urls:
+        if url.startswith(("#", "data:")):
+            continue
+        assert tag == "a" and url.startswith("https://doi.org/"), f"{tag} points at {url[:80]}"
+
+
+def test_summary_figures_equal_findings_json(html, findings):
+    headline = findings["headline"]
+    glance = _plain(html[html.index('id="at-a-glance"'):html.index('id="goal-profile"')])
+    assert f">{headline['n_publications']}<" in glance.replace(" <", "<").replace("> ", ">")
+    share = f"{100 * headline['share_aligned_any']:.1f}%"
+    assert share in glance, f"{share} not in the summary"
+    top = max(findings["tables"]["goals"], key=lambda g: (g["share"], -int(g["goal"])))
+    assert f"{100 * top['share']:.1f}%" in glance
+
+
+def test_scores_cover_every_kept_publication_and_goal(demo_build):
+    log = list(csv.DictReader((demo_build.out / "intake-log.csv").open(encoding="utf-8")))
+    kept = {r["record_id"] for r in log if r["status"] == "kept"}
+    assert len(log) == sum(1 for r in log if r["status"] in ("kept", "merged", "set_aside")), "read = kept + merged + set aside"
+    scores = list(csv.DictReader((demo_build.out / "data" / "scores.csv").open(encoding="utf-8")))
+    assert {r["record_id"] for r in scores} == kept
+    assert len(scores) == 17 * len(kept)
+
+
+def test_one_figure_is_the_same_in_html_csv_and_json(demo_build, findings, html):
+    goals_csv = list(csv.DictReader((demo_build.out / "data" / "findings-goals.csv").open(encoding="utf-8")))
+    row = next(r for r in goals_csv if r["goal"] == "13")
+    from_json = next(g for g in findings["tables"]["goals"] if g["goal"] == "13")
+    assert int(row["n_aligned"]) == from_json["n_aligned"]
+    assert float(row["share"]) == pytest.approx(from_json["share"], abs=1e-6), "JSON rounds to 6 places"
+    profile = _plain(html[html.index('id="goal-profile"'):html.index('id="change-over-time"')])
+    assert f"{100 * from_json['share']:.1f}%" in profile
+
+
+def test_pdf_has_contents_page_numbers_and_sections(pdf_pages):
+    assert len(pdf_pages) >= 8
+    contents = _plain(pdf_pages[1])
+    assert "Contents" in contents and "At a glance" in contents
+    assert re.search(r"Goal profile\W+\d+", contents), "contents lists page numbers"
+    full = _plain(" ".join(pdf_pages))
+    for title in SECTIONS:
+        assert title in full
+    for phrase in CAUTIONS:
+        assert phrase in full
+    assert re.search(r"Page 3 of \d+", _plain(pdf_pages[2])), "running page numbers"
+
+
+def test_manifest_records_what_went_in(demo_build):
+    manifest = json.loads((demo_build.out / "manifest.json").read_text(encoding="utf-8"))
+    assert manifest["model"]["id"] == "sentence-transformers/all-MiniLM-L6-v2"
+    assert len(manifest["model"]["checksum"]) == 64
+    assert manifest["framework"]["id"] == "un-sdg-2030" and len(manifest["framework"]["checksum"]) == 64
+    assert {f["path"] for f in manifest["inputs"]} == {
+        "publications-2025.bib", "publications-2024.ris", "cris-export-2022-2023.csv"}
+    assert all(len(f["sha256"]) == 64 for f in manifest["inputs"])
+    assert manifest["rows"] == {"read": 462, "kept": 447, "merged": 10, "set_aside": 5,
+                                "scores": 447 * 17, "sentences": manifest["rows"]["sentences"]}
+    assert manifest["analysis"]["counting"] == "full"
+
+
+def test_validation_section_uses_the_demo_labelled_sample(findings):
+    validation = findings["extra"]["validation"]
+    assert validation["n_matched"] == 80 and validation["n_unmatched"] == 0
+    assert 0 < validation["averages"]["macro"]["f1"] <= 1
