@@ -28,6 +28,23 @@ def _setup_logging(verbose: int, quiet: bool) -> None:
     logging.getLogger("bibtexparser").setLevel(logging.ERROR)
 
 
+def _with_execution(config, execution: str | None, scheduler: str | None):
+    """The config with --execution/--scheduler applied (unset options never override), validated again."""
+    from pydantic import ValidationError
+
+    updates = {k: v for k, v in (("execution", execution), ("scheduler", scheduler)) if v is not None}
+    if not updates:
+        return config
+    try:
+        score_cfg = type(config.score).model_validate({**dict(config.score), **updates})
+    except ValidationError as exc:
+        messages = (f"score.{e['loc'][0]}: {e['msg'].removeprefix('Value error, ')}" for e in exc.errors())
+        raise click.UsageError("; ".join(messages)) from None
+    if scheduler is not None and score_cfg.execution != "dask":
+        raise click.UsageError("--scheduler needs --execution dask (or score.execution = \"dask\")")
+    return config.model_copy(update={"score": score_cfg})
+
+
 @click.group()
 @click.version_option(__version__, prog_name="waymark")
 def main() -> None:
@@ -63,10 +80,16 @@ def intake(config_path: Path, out_dir: Path | None, verbose: int, quiet: bool) -
 @click.option("--sentences", is_flag=True, help="Also export per-sentence scores (data/sentences.csv).")
 @click.option("--review-worksheet", is_flag=True,
               help="Also write review-worksheet.csv: borderline pairs near the threshold, for people to decide.")
+@click.option("--threads", type=click.IntRange(min=1), default=None,
+              help="CPU threads for the model (overrides score.threads; all cores when both are unset).")
+@click.option("--execution", type=click.Choice(["local", "dask"]), default=None,
+              help="Score in this process or on a Dask cluster (overrides score.execution).")
+@click.option("--scheduler", metavar="ADDR", default=None,
+              help="Dask scheduler address such as tcp://host:8786 (overrides score.scheduler).")
 @click.option("-v", "--verbose", count=True, help="More detail on stderr.")
 @click.option("-q", "--quiet", is_flag=True, help="No progress bars; warnings only.")
-def build(config_path: Path, out_dir: Path | None, sentences: bool, review_worksheet: bool, verbose: int,
-          quiet: bool) -> None:
+def build(config_path: Path, out_dir: Path | None, sentences: bool, review_worksheet: bool, threads: int | None,
+          execution: str | None, scheduler: str | None, verbose: int, quiet: bool) -> None:
     """Run the whole job: intake, scoring, analysis, report (HTML + PDF), exports, manifest."""
     from reporter.config import load_config
     from reporter.pipeline import run
@@ -75,6 +98,9 @@ def build(config_path: Path, out_dir: Path | None, sentences: bool, review_works
     _setup_logging(verbose, quiet)
     try:
         config = load_config(config_path, output=out_dir)
+        if threads is not None:
+            config = config.model_copy(update={"score": config.score.model_copy(update={"threads": threads})})
+        config = _with_execution(config, execution, scheduler)
         result = run(config, show_progress=not quiet, keep_sentences=sentences, review_worksheet=review_worksheet)
     except ReporterError as error:
         _fail(error)

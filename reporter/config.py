@@ -158,6 +158,33 @@ class ScoreConfig(_Section):
     thresholds_file: Path | None = Field(
         default=None, description="Per-goal thresholds (CSV goal,threshold) that replace the single threshold."
     )
+    execution: Literal["local", "dask"] = Field(
+        default="local",
+        description="local: score in this process; dask: score on a Dask cluster (needs the 'distributed' extra).",
+    )
+    scheduler: str | None = Field(
+        default=None,
+        description="Dask scheduler address such as tcp://host:8786; a local cluster on this machine when unset.",
+    )
+    workers: int | None = Field(
+        default=None, ge=1,
+        description="Worker processes of the local Dask cluster (scheduler unset); one per CPU core when unset.",
+    )
+
+    @field_validator("scheduler")
+    @classmethod
+    def _scheduler_address(cls, value: str | None) -> str | None:
+        if value is not None and not re.fullmatch(r"([a-z][a-z0-9+.-]*://)?[^\s/:]+(:\d+)?", value.strip()):
+            raise ValueError(f"expected a scheduler address such as 'tcp://host:8786', got {value!r}")
+        return value.strip() if value is not None else None
+
+    @field_validator("workers")
+    @classmethod
+    def _local_cluster_only(cls, value: int | None, info) -> int | None:
+        # A remote cluster has the workers its operator started; a count here would be ignored silently.
+        if value is not None and info.data.get("scheduler") is not None:
+            raise ValueError("only sizes the local cluster; remove it or score.scheduler")
+        return value
 
 
 class AnalysisConfig(_Section):

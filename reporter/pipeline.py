@@ -53,11 +53,20 @@ def run(config: Config, show_progress: bool = True, keep_sentences: bool = False
     # framework and threshold: that is what makes year-on-year changes like-for-like.
     parts = load_scoring_parts(config.score)
     try:
-        scores = score(
-            intake.records, parts.framework, parts.embedder, config.score, cache=parts.cache,
-            thresholds=parts.thresholds, keep_sentences=keep_sentences or review_worksheet,
-            show_progress=show_progress,
-        )
+        if config.score.execution == "dask":
+            # Same score() per partition on the cluster's workers; the table comes back in record order.
+            from reporter.score.distributed import score_on_dask
+
+            scores = score_on_dask(
+                intake.records, parts, config.score,
+                keep_sentences=keep_sentences or review_worksheet, show_progress=show_progress,
+            )
+        else:
+            scores = score(
+                intake.records, parts.framework, parts.embedder, config.score, cache=parts.cache,
+                thresholds=parts.thresholds, keep_sentences=keep_sentences or review_worksheet,
+                show_progress=show_progress,
+            )
     finally:
         parts.close()
     goals = tuple((goal.code, goal.short_title) for goal in parts.framework.goals)
@@ -89,6 +98,11 @@ def run(config: Config, show_progress: bool = True, keep_sentences: bool = False
     written = render(inputs, config.report, config.output_dir)
     if review_worksheet:
         written = {**written, **_write_review_worksheet(config, intake, scores)}
+    if keep_sentences and scores.sentences is not None:
+        from reporter.render.exports import write_csv
+
+        path = config.output_dir / "data" / "sentences.csv"
+        written = {**written, "data/sentences.csv": write_csv(scores.sentences, path, root=config.output_dir)}
     return RunResult(intake=intake, written=written, scores=scores, findings=findings)
 
 

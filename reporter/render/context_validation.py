@@ -73,7 +73,7 @@ class CorrectedRow:
     corrected_low: float = _h("Lower bootstrap bound of the corrected share; NaN when none")
     corrected_high: float = _h("Upper bootstrap bound of the corrected share; NaN when none")
     is_refused: bool = _h("True when no correction could be made; `remark` says why")
-    remark: str = _h("The refusal reason, or the plain-words note on the rates and the interval")
+    remark: str = _h("The refusal reason, or analyse's note when the share was clipped or has no interval; else ''")
 
 
 @dataclass(frozen=True)
@@ -99,7 +99,7 @@ class ValidationSection:
     matrix_chart: Chart | None = _h("Labelled goal x predicted goal heat map; None without matched publications")
     off_diagonal: tuple[MatrixCell, ...] = _h(
         "The fullest heat map cells off the diagonal, most first (the chart's text alternative)")
-    curve_chart: Chart | None = _h("Precision and recall across thresholds, one panel per goal with labelled publications")
+    curve_chart: Chart | None = _h("Precision and recall by threshold, a panel per goal with labelled publications")
     n_goals_without_labels: int = _h("Goals with no labelled publication, left out of the threshold chart")
     recommended: tuple[ThresholdRow, ...] = _h("Recommended per-goal thresholds, framework order")
     recommended_averages: tuple[AverageRow, ...] = _h("Micro and macro averages at the recommended thresholds")

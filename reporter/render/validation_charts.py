@@ -15,7 +15,7 @@ from reporter.render.charts import to_svg
 from reporter.render.context import Chart
 from reporter.render.themes import Theme
 
-NO_GOAL = "none"  # the validation matrix's "no goal" row and column (analyse.validation.NONE); short enough for a column
+NO_GOAL = "none"  # the matrix's "no goal" row and column (analyse.validation.NONE); short enough for a column
 
 
 def draw_goal_matrix(cells: pd.DataFrame, goal_order: Sequence[str], theme: Theme, alt_text: str) -> Chart:
@@ -28,10 +28,13 @@ def draw_goal_matrix(cells: pd.DataFrame, goal_order: Sequence[str], theme: Them
     x = alt.X("predicted:N", sort=order, title="goal given by the machine", axis=alt.Axis(labelAngle=0, orient="top"))
     y = alt.Y("labelled:N", sort=order, title="goal given by people")
     filled = cells.loc[cells["n"] > 0]
-    top = max(int(filled["n"].max()), 1) if not filled.empty else 1
+    # "none" by "none" (publications nobody gave a goal) can dwarf every goal cell; the colour
+    # scale spans the goal cells and that one cell takes the darkest colour.
+    goal_cells = filled.loc[(filled["labelled"] != NO_GOAL) | (filled["predicted"] != NO_GOAL), "n"]
+    top = max(int(goal_cells.max()), 1) if not goal_cells.empty else 1
     rects = alt.Chart(filled).mark_rect(stroke=pal["paper"], strokeWidth=1).encode(
         x=x, y=y,
-        color=alt.Color("n:Q", scale=alt.Scale(range=pal["sequential"], zero=True, domain=[0, top]),
+        color=alt.Color("n:Q", scale=alt.Scale(range=pal["sequential"], zero=True, domain=[0, top], clamp=True),
                         legend=alt.Legend(title="labelled publications", orient="bottom", direction="horizontal",
                                           gradientLength=160, tickMinStep=1)),
     )

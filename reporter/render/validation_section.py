@@ -158,7 +158,8 @@ def _matrix(rows: list[dict], goals: Sequence[tuple[str, str]], theme: Theme, n_
     off = cells.loc[(cells["labelled"] != cells["predicted"]) & (cells["n"] > 0)]
     off = off.assign(a=off["labelled"].map(position), b=off["predicted"].map(position)).sort_values(
         ["n", "a", "b"], ascending=[False, True, True], kind="stable")
-    off_diagonal = tuple(MatrixCell(r.labelled, r.predicted, int(r.n)) for r in off.head(N_OFF_DIAGONAL_SHOWN).itertuples())
+    off_diagonal = tuple(MatrixCell(r.labelled, r.predicted, int(r.n))
+                         for r in off.head(N_OFF_DIAGONAL_SHOWN).itertuples())
     agreed = int(cells.loc[(cells["labelled"] == cells["predicted"]) & (cells["labelled"] != NO_GOAL), "n"].sum())
     alt_text = (
         f"Heat map of the {n_matched} labelled publications: rows are the goal people gave, columns the goal the "
@@ -197,7 +198,9 @@ def _corrected(table: object, goals: Sequence[tuple[str, str]]) -> tuple[Correct
             continue
         r = by_goal.loc[code]
         reason = "" if pd.isna(r["reason"]) else str(r["reason"])
-        note = "" if pd.isna(r["note"]) else str(r["note"])
+        # The note restates the rates shown in their own columns; print it only when it adds a caution.
+        cautious = bool(r.get("is_clipped", False)) or pd.isna(r["corrected_low"])
+        note = "" if pd.isna(r["note"]) or not cautious else str(r["note"])
         rows.append(CorrectedRow(
             goal=code, title=title, n=int(r["n"]), apparent=float(r["apparent"]),
             sensitivity=float(r["sensitivity"]), specificity=float(r["specificity"]),

@@ -25,8 +25,10 @@ class QuantisedEmbedder(SentenceEmbedder):
         # Only the Linear layers: they hold nearly all the arithmetic; embeddings and layer norms
         # stay fp32, as dynamic quantisation supports.
         with warnings.catch_warnings():
-            # torch 2.x flags its quantised tensor types as deprecated; the API still works here.
+            # torch flags torch.ao.quantization and its quantised tensors as deprecated (successor:
+            # the separate torchao package); they still work in the torch this project installs.
             warnings.filterwarnings("ignore", message=".*quantize_per_tensor", category=UserWarning)
+            warnings.filterwarnings("ignore", message="torch.ao.quantization is deprecated", category=DeprecationWarning)
             self._model = torch.ao.quantization.quantize_dynamic(self._model, {torch.nn.Linear}, dtype=torch.qint8)
         self._model.eval()
         self.info = dataclasses.replace(
