@@ -15,6 +15,7 @@ import pandas as pd
 
 from reporter.enrich.doi import normalise_doi
 from reporter.errors import InputError, Problem
+from reporter.sidefiles import read_side_file
 
 _KEY = "validation.labelled_sample"
 NO_GOAL = "none"  # the word a labeller writes for a publication that addresses no goal
@@ -47,12 +48,7 @@ class LabelledSample:
 def read_labelled_sample(path: Path, records: pd.DataFrame, goal_codes: tuple[str, ...]) -> LabelledSample:
     """Read the labelled sample and match it to `records` (the kept records: record_id, doi)."""
     path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8-sig")
-    except FileNotFoundError:
-        raise InputError(Problem(path, None, _KEY, "labelled sample not found")) from None
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(Problem(path, None, _KEY, f"cannot read labelled sample as UTF-8 text: {exc}")) from None
+    text = read_side_file(path, _KEY, "labelled sample")
     reader = csv.reader(io.StringIO(text))
     header = [h.strip().casefold() for h in next(reader, [])]
     if "goals" not in header or not {"record_id", "doi"} & set(header):

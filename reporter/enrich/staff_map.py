@@ -17,6 +17,7 @@ from types import MappingProxyType
 from typing import Mapping
 
 from reporter.errors import InputError, Problem
+from reporter.sidefiles import read_side_file
 
 _KEY = "departments.staff_map"
 _ORCID = re.compile(r"\d{4}-\d{4}-\d{4}-\d{3}[\dX]")
@@ -71,12 +72,7 @@ def parse_name(text: str) -> tuple[str, tuple[str, ...]]:
 
 def read_staff_map(path: Path) -> StaffMap:
     """Read and check the staff map; every bad row is reported at once with its line."""
-    try:
-        text = path.read_text(encoding="utf-8-sig")
-    except FileNotFoundError:
-        raise InputError(Problem(path, None, _KEY, "staff map not found")) from None
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(Problem(path, None, _KEY, f"cannot read staff map as UTF-8 text: {exc}")) from None
+    text = read_side_file(path, _KEY, "staff map")
     lines = text.splitlines()
     if not any(line.strip() for line in lines):
         raise InputError(Problem(path, None, _KEY, "staff map is empty"))

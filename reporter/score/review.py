@@ -17,6 +17,7 @@ import pandas as pd
 
 from reporter.errors import InputError, Problem
 from reporter.records import require_columns
+from reporter.sidefiles import read_side_file
 
 _KEY = "validation.review_file"
 DECISIONS = ("include", "exclude")
@@ -31,12 +32,7 @@ WORKSHEET_COLUMNS = (
 def read_review_file(path: Path, record_ids, goal_codes: tuple[str, ...]) -> pd.DataFrame:
     """Review decisions (REVIEW_COLUMNS + line); rows with an empty decision are not yet reviewed and skipped."""
     path = Path(path)
-    try:
-        text = path.read_text(encoding="utf-8-sig")
-    except FileNotFoundError:
-        raise InputError(Problem(path, None, _KEY, "review file not found")) from None
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(Problem(path, None, _KEY, f"cannot read review file as UTF-8 text: {exc}")) from None
+    text = read_side_file(path, _KEY, "review file")
     reader = csv.reader(io.StringIO(text))
     header = [h.strip().casefold() for h in next(reader, [])]
     missing = [c for c in ("record_id", "goal", "decision") if c not in header]

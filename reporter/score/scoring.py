@@ -17,7 +17,7 @@ import numpy as np
 import pandas as pd
 
 from reporter.config import ScoreConfig
-from reporter.records import RECORD_COLUMNS, SCORE_COLUMNS, require_columns
+from reporter.records import SCORE_COLUMNS, require_columns
 from reporter.score.align import AlignParams, GoalSpace, aggregate_by_record, sentence_scores
 from reporter.score.cache import EmbeddingCache, text_hash
 from reporter.score.encode import EncodeStats, embed_texts
@@ -213,7 +213,6 @@ def _score_chunk(chunk, cfg, codes, scorer, patterns, keywords, splitter, embedd
     explicit_counts = np.zeros((len(chunk), n_goals), dtype=np.int32)
     lexical = np.zeros((len(chunk), n_goals), dtype=np.float32)
     general_rows = []
-    mention_spans: dict[tuple[int, int], list[tuple[int, int]]] = {}
     code_index = {code: g for g, code in enumerate(codes)}
     for i, row in enumerate(chunk.itertuples(index=False)):
         fields = {f: getattr(row, f) for f in ("title", "abstract", "keywords") if hasattr(row, f)}

@@ -75,3 +75,19 @@ def test_summary_reconciles_on_screen(intake_run):
     output, _ = intake_run
     all_line = next(line for line in output.splitlines() if line.startswith("all ") and "462" in line)
     assert all_line.split()[1:] == ["462", "447", "10", "5"]
+
+
+def test_countries_and_departments_match_the_scenario():
+    """Partner countries (ISO 3166-1 via pycountry) and departments from the staff map, as the generator wrote them."""
+    from collections import Counter
+
+    from reporter.config import load_config
+    from reporter.pipeline import run_intake
+
+    records = run_intake(load_config(REPO / "example_input" / "waymark.toml")).records
+    assert int(records["is_international"].sum()) == KNOWN["international_publications"]
+    partners = Counter(code for codes in records["partner_countries"] for code in codes)
+    assert dict(partners) == KNOWN["partner_countries"]
+    departments = Counter(name for names in records["departments"] for name in names)
+    assert dict(departments) == KNOWN["departments_full_counting"]
+    assert int((records["departments"].map(len) == 0).sum()) == KNOWN["no_staff_author"]["count"]

@@ -1,7 +1,6 @@
 """The demo report as a reader gets it: README command (1)'s build, opened and read back."""
 
 import csv
-import io
 import json
 import re
 from html.parser import HTMLParser

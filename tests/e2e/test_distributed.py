@@ -8,6 +8,7 @@ decisions and evidence included, must be identical.
 """
 
 import contextlib
+import json
 import shutil
 import sqlite3
 from pathlib import Path
@@ -139,3 +140,27 @@ def test_workers_with_a_scheduler_is_a_config_error(tmp_path):
         load_config(path)
     line = len(text.splitlines()) + 5
     assert str(caught.value) == f"{path.resolve()}:{line}: score.workers: only sizes the local cluster; remove it or score.scheduler"
+
+
+TINY_CSV = """id,title,abstract,year,authors,affiliations
+t1,Chlorinated wells in three river towns,"Household latrines and chlorinated drinking water reduced diarrhoeal disease. We followed 400 families for two years.",2025,"Quill, Ada","Kestrel Heath University, Ireland"
+t2,Rooftop solar for island schools,"Rooftop solar panels and battery storage brought electricity to off-grid schools. Diesel use fell by half.",2025,"Marsh, Tobin","Kestrel Heath University, Ireland; Lakeside Institute, Kenya"
+t3,On the rank of curves over function fields,"We bound the rank of elliptic curves by the conductor degree. The proof uses a descent argument.",2025,"Quill, Ada","Kestrel Heath University, Ireland"
+"""
+
+
+@pytest.mark.model
+def test_build_with_execution_dask_scores_on_the_cluster(tmp_path):
+    """`waymark build --execution dask` goes through the cluster branch of the pipeline."""
+    (tmp_path / "pubs.csv").write_text(TINY_CSV, encoding="utf-8")
+    (tmp_path / "waymark.toml").write_text(
+        '[report]\ninstitution = "Kestrel Heath University"\nhome_country = "IE"\nreporting_year = 2025\n\n'
+        '[[inputs]]\npath = "pubs.csv"\n\n[score]\nworkers = 1\n', encoding="utf-8")
+    out = tmp_path / "out"
+    result = CliRunner().invoke(main, ["build", str(tmp_path / "waymark.toml"), "--out", str(out), "-q",
+                                       "--execution", "dask"])
+    assert result.exit_code == 0, result.output + repr(result.exception)
+    assert "Scored 3 publications" in result.output
+    manifest = json.loads((out / "manifest.json").read_text(encoding="utf-8"))
+    assert manifest["config"]["score"]["execution"] == "dask", "the manifest records where scoring ran"
+    assert not list((tmp_path / ".waymark-cache").glob("*.worker-*")), "the worker's cache file was merged"

@@ -7,7 +7,6 @@ consistent (shares are n_aligned / n with Wilson bounds from statsmodels).
 from __future__ import annotations
 
 from dataclasses import replace
-from pathlib import Path
 
 import pandas as pd
 from statsmodels.stats.proportion import proportion_confint
