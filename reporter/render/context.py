@@ -87,6 +87,9 @@ class ChangeRow:
     p_adjusted: float = _h("p-value after the false discovery rate adjustment")
     is_change: bool = _h("True when the change survived the adjustment")
     verdict: str = _h("'increase', 'decrease', 'no clear change' or 'too small'")
+    also_against: tuple[str, ...] = _h(
+        "Summary only: the other baselines against which the same goal's change also held", default=()
+    )
 
 
 @dataclass(frozen=True)
@@ -98,7 +101,10 @@ class Summary:
     share_high: float = _h("Upper interval bound of share_aligned_any")
     n_explicit_any: float = _h("Publications that mention at least one goal explicitly")
     leading_goals: tuple[GoalRow, ...] = _h("The goals with the largest shares, largest first (at most three)")
-    changes: tuple[ChangeRow, ...] = _h("Changes that survived the false discovery rate adjustment")
+    changes: tuple[ChangeRow, ...] = _h(
+        "One row per goal whose change survived the false discovery rate adjustment: the pooled baseline "
+        "when it held, else the clearest one; also_against names the rest"
+    )
     has_comparison: bool = _h("True when earlier years were compared")
 
 

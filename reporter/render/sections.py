@@ -6,6 +6,8 @@ come from `Findings` unchanged.
 
 from __future__ import annotations
 
+import dataclasses
+
 import math
 from typing import Sequence
 
@@ -71,7 +73,7 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
         share_high=headline["share_aligned_any_high"],
         n_explicit_any=headline.get("n_explicit_any", math.nan),
         leading_goals=tuple(ranked[:N_LEADING_GOALS]),
-        changes=tuple(r for r in change_rows if r.is_change),
+        changes=_summary_changes(change_rows),
         has_comparison=has_comparison,
     )
     years = tuple(sorted(int(y) for y in meta.get("years", ()))) or (int(report.reporting_year),)
@@ -221,3 +223,19 @@ def _together(frame: pd.DataFrame, goals, titles: dict[str, str], theme: Theme) 
     )
     chart = charts.draw_cooccurrence(known[["goal_a", "goal_b", "n"]], goals, theme) if pairs else None
     return TogetherSection(pairs=pairs, chart=chart)
+
+
+def _summary_changes(rows) -> tuple:
+    """A goal once in the summary, however many baselines its change held against."""
+    held: dict[str, list] = {}
+    for row in rows:
+        if row.is_change:
+            held.setdefault(row.goal, []).append(row)
+    out = []
+    for group in held.values():
+        # The pooled baseline ("mean ...") speaks for all comparison years; else the clearest test.
+        pooled = [r for r in group if r.baseline.startswith("mean")]
+        lead = pooled[0] if pooled else min(group, key=lambda r: r.p_adjusted)
+        others = tuple(r.baseline for r in group if r is not lead)
+        out.append(dataclasses.replace(lead, also_against=others))
+    return tuple(out)
