@@ -57,10 +57,16 @@ def score_on_dask(
     show_progress: bool = True,
     client: Client | None = None,
 ) -> Scores:
-    """Score every record on a Dask cluster; the result equals `score()` run locally.
+    """Score every record on a Dask cluster, as `score()` would locally.
 
+    Decisions, evidence and mention counts equal a local run's; scores may differ in the last
+    rounded place, as a matrix product's rounding depends on its shape (partitions vs chunks).
     `client` is used as given (and left open); otherwise one is connected to `cfg.scheduler`, or a
-    local cluster of `cfg.workers` processes is started and closed afterwards.
+    local cluster of `cfg.workers` processes is started and closed afterwards. A worker lost mid-run
+    is Dask's to handle: its partitions run again elsewhere (cache writes are idempotent).
+    `stats` adds execution, n_workers, n_partitions, n_worker_caches_merged and n_vectors_merged;
+    n_cache_hits and n_encoded include each partition's goal-space lookups, and n_unique_sentences
+    counts distinct sentences per partition (a local run counts them per chunk).
     """
     require_columns(records, ("record_id", *cfg.text_fields), "score_on_dask")
     method = method or ScoringMethod()

@@ -39,7 +39,7 @@ batch_size = 32
 """
 
 
-N_RECORDS = 50  # enough sentences for several cache batches, few enough to keep the test short
+N_RECORDS = 30  # enough sentences for several cache batches, few enough to keep the test short
 
 
 def _project(tmp_path: Path, cache: str) -> Path:
