@@ -17,7 +17,8 @@ import pytest
 
 REPO = Path(__file__).resolve().parents[2]
 
-_CHILD = r"""
+#: Installed first in the child interpreter: records and refuses every attempt to reach the network.
+GUARD = r"""
 import json, socket, sys
 
 attempts = []
@@ -35,7 +36,9 @@ socket.socket.sendto = _refuse("sendto")
 socket.create_connection = _refuse("create_connection")
 socket.getaddrinfo = _refuse("getaddrinfo")
 socket.gethostbyname = _refuse("gethostbyname")
+"""
 
+_CHILD = GUARD + r"""
 from reporter.score.embedder import SentenceEmbedder
 
 embedder = SentenceEmbedder(threads=1)
@@ -45,14 +48,18 @@ print(json.dumps({"attempts": attempts, "shape": list(vectors.shape),
 """
 
 
-@pytest.mark.model
-def test_model_loads_and_encodes_with_sockets_blocked(tmp_path) -> None:
+def run_offline(script: str, tmp_path: Path, timeout: int = 180) -> subprocess.CompletedProcess:
+    """Run `script` in a fresh interpreter with no hub settings and an empty hub cache."""
     env = {k: v for k, v in os.environ.items() if not k.startswith(("HF_", "TRANSFORMERS_", "SENTENCE_TRANSFORMERS_"))}
     # An empty hub cache: a model found only there would mean something had been fetched before.
     env.update(HF_HOME=str(tmp_path / "hf-home"), PYTHONPATH=str(REPO))
-    done = subprocess.run(
-        [sys.executable, "-c", _CHILD], cwd=tmp_path, env=env, capture_output=True, text=True, timeout=180,
-    )
+    return subprocess.run([sys.executable, "-c", script], cwd=tmp_path, env=env, capture_output=True, text=True,
+                          timeout=timeout)
+
+
+@pytest.mark.model
+def test_model_loads_and_encodes_with_sockets_blocked(tmp_path) -> None:
+    done = run_offline(_CHILD, tmp_path)
     assert done.returncode == 0, done.stderr[-3000:]
     result = json.loads(done.stdout.strip().splitlines()[-1])
     assert result["attempts"] == [], "something tried the network"

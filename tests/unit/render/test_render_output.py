@@ -170,3 +170,20 @@ def test_pdf_charts_are_vector(rendered):
     images = [name for page in reader.pages for name in page.images]
     assert images == [], "charts are drawn as vector paths, not embedded pictures"
     assert reader.pages[0].mediabox.width == pytest.approx(595.3, abs=1), "A4 width in points"
+
+
+def test_injected_markup_is_inert_in_the_pdf(rendered, pdf_pages):
+    """The PDF prints injected markup as text, carries no script and links only to doi.org."""
+    from pypdf import PdfReader
+
+    text = " ".join(" ".join(p.split()) for p in pdf_pages)
+    assert "<script>alert(1)</script>" in text
+    reader = PdfReader(str(rendered["report.pdf"]))
+    raw = rendered["report.pdf"].read_bytes()
+    assert b"/JavaScript" not in raw and b"/JS " not in raw and b"/Launch" not in raw
+    for page in reader.pages:
+        for annot in page.get("/Annots") or []:
+            action = annot.get_object().get("/A")
+            uri = action.get_object().get("/URI") if action is not None else None
+            if uri is not None:
+                assert str(uri).startswith("https://doi.org/"), uri
