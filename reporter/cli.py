@@ -8,6 +8,7 @@ keeps its traceback.
 from __future__ import annotations
 
 import logging
+import os
 import sys
 from pathlib import Path
 
@@ -23,6 +24,9 @@ def _fail(error: ReporterError) -> None:
 
 def _setup_logging(verbose: int, quiet: bool) -> None:
     level = logging.WARNING if quiet else (logging.DEBUG if verbose > 1 else logging.INFO)
+    if quiet:
+        # transformers draws its own weight-loading bar; it reads this switch when first imported.
+        os.environ["HF_HUB_DISABLE_PROGRESS_BARS"] = "1"
     logging.basicConfig(level=level, format="%(levelname)s %(message)s", stream=sys.stderr)
     # bibtexparser logs every failed block with 0-based lines; the intake log already lists them, 1-based.
     logging.getLogger("bibtexparser").setLevel(logging.ERROR)
