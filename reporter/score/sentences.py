@@ -15,6 +15,8 @@ import pysbd
 
 # Units shorter than this carry no goal signal of their own ("Methods:", "2.").
 _MIN_CHARS = 12
+# Word pieces a backend may add around a text when it counts tokens (the NLI hypothesis: 16).
+_TOKEN_MARGIN = 16
 # Publisher and licence lines that exports append to abstracts; they say nothing about the research.
 _BOILERPLATE = re.compile(
     r"(©|\(c\)\s*\d{4}|\bcopyright\b|all rights reserved|published by\b|this is an open access article"
@@ -90,7 +92,13 @@ def fit_to_model(
 ) -> list[TextUnit]:
     """Split units longer than the model's input into word windows that fit."""
     units = list(units)
-    lengths = count_tokens([u.text for u in units]) if units else []
+    # A word piece covers at least one character, so a text no longer than the budget (less the
+    # room a backend adds for its own markers) fits without tokenising it; only longer ones are counted.
+    long = [i for i, u in enumerate(units) if len(u.text) + _TOKEN_MARGIN > max_tokens]
+    counted = count_tokens([units[i].text for i in long]) if long else []
+    lengths = [0] * len(units)
+    for i, n in zip(long, counted):
+        lengths[i] = n
     out: list[TextUnit] = []
     for unit, n_tokens in zip(units, lengths):
         if n_tokens <= max_tokens:

@@ -30,3 +30,17 @@ def test_publisher_boilerplate_is_not_scored():
                 "© 2024 The Authors. Published by Example Press Ltd. All rights reserved.")
     units = record_units("r", {"abstract": abstract}, ("abstract",), SentenceSplitter())
     assert [u.text for u in units] == ["Nitrate leaching was measured in twelve catchments."]
+
+
+def test_short_units_are_not_tokenised_and_long_ones_are():
+    seen = []
+
+    def count(texts):
+        seen.extend(texts)
+        return [len(t.split()) * 3 for t in texts]
+
+    short = TextUnit("r", "abstract", 0, "A short sentence about wells.")
+    long = TextUnit("r", "abstract", 1, " ".join(["word"] * 60))
+    out = fit_to_model([short, long], max_tokens=100, count_tokens=count)
+    assert seen == [long.text], "a text shorter than the token budget cannot exceed it"
+    assert out[0] == short and len(out) == 3
