@@ -8,6 +8,7 @@ against the config file's folder.
 from __future__ import annotations
 
 import difflib
+import os
 import re
 import tomllib
 from pathlib import Path
@@ -327,7 +328,7 @@ def _resolve_paths(
         # Existence was checked on the raw values (`_missing_files`); here paths only resolve.
         if value is None:
             return None
-        return value if value.is_absolute() else base / value
+        return Path(os.path.normpath(value if value.is_absolute() else base / value))
 
     inputs = tuple(
         item.model_copy(update={"path": resolve(item.path, f"inputs[{i}].path", True)})
