@@ -56,13 +56,13 @@ FOREIGN = (
                   "Se concluye que fortalecer la atención especializada y las redes comunitarias es clave para una justicia efectiva con enfoque de género.")),
     dict(
         lang="fr", file="csv", year=2022, goals=("4",), dept="ESS", partner="Valtrenne",
-        title="Apprentissage de la lecture en classes multilingues : une étude longitudinale dans les écoles primaires",
-        keywords=("lecture", "école primaire", "plurilinguisme", "inégalités scolaires"),
-        abstract=("L'apprentissage de la lecture au cours des premières années de l'école primaire conditionne fortement la suite de la scolarité. "
+        title="Apprentissage de l'écrit en classes multilingues : une étude longitudinale dans les écoles primaires",
+        keywords=("littératie", "école primaire", "plurilinguisme", "inégalités scolaires"),
+        abstract=("L'apprentissage de l'écrit au cours des premières années de l'école primaire conditionne fortement la suite de la scolarité. "
                   "Dans les classes où de nombreux élèves parlent une autre langue à la maison, les enseignants disposent de peu d'outils adaptés. "
                   "Cette étude longitudinale a suivi 1 140 élèves de 52 classes pendant deux années scolaires. "
                   "Les compétences de décodage, de vocabulaire et de compréhension ont été évaluées trois fois par an, "
-                  "et les pratiques pédagogiques ont été observées lors de 210 séances de lecture. "
+                  "et les pratiques pédagogiques ont été observées lors de 210 séances de compréhension de textes. "
                   "Les élèves plurilingues progressaient aussi vite que leurs camarades en décodage, mais l'écart de vocabulaire se maintenait. "
                   "Les classes où l'enseignement explicite du vocabulaire était fréquent présentaient des écarts nettement plus faibles. "
                   "Ces résultats plaident pour une formation des enseignants centrée sur le vocabulaire et la compréhension.")),

@@ -283,7 +283,7 @@ TOPICS = [
         method=("Administrative records for {n:3000-12000} students were combined with a survey of belonging and self-efficacy.",
                 "We interviewed {n:30-60} women at different career stages and analysed promotion records."),
         result=("Women reported lower belonging in the first year, which predicted leaving the programme even after accounting for grades.",
-                "Promotion gaps emerged at the transition to senior lecturer and were linked to caring responsibilities and informal networks."),
+                "Promotion gaps emerged at the transition to associate professor and were linked to caring responsibilities and informal networks."),
         implication=("Inclusive teaching and mentoring could reduce gender gaps in STEM education and careers.",
                      "Institutions should examine promotion criteria for hidden biases."),
         note="gender equality in STEM education and careers",
