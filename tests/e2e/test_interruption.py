@@ -5,7 +5,6 @@ uninterrupted run; a killed build leaves the previous report as it was.
 """
 
 import os
-import shutil
 import signal
 import sqlite3
 import subprocess
@@ -15,42 +14,18 @@ from pathlib import Path
 
 import pytest
 
+from tests.e2e.small_project import make_small_project
+
 pytestmark = pytest.mark.model
 
-REPO = Path(__file__).resolve().parents[2]
 COMPARED = ("data/scores.csv", "data/evidence.csv", "data/findings.json", "intake-log.csv")
-
-CONFIG = """\
-[report]
-institution = "Kestrel Heath University"
-home_country = "IE"
-reporting_year = 2024
-output = "out"
-
-[[inputs]]
-path = "publications-2024.ris"
-
-[departments]
-staff_map = "staff.csv"
-
-[score]
-cache = "{cache}"
-batch_size = 32
-"""
-
 
 N_RECORDS = 30  # enough sentences for several cache batches, few enough to keep the test short
 
 
 def _project(tmp_path: Path, cache: str) -> Path:
-    folder = tmp_path / cache
-    folder.mkdir()
-    shutil.copy(REPO / "example_input" / "staff.csv", folder / "staff.csv")
-    ris = (REPO / "example_input" / "publications-2024.ris").read_text(encoding="utf-8")
-    records = ris.split("ER  -")[:N_RECORDS]
-    (folder / "publications-2024.ris").write_text("ER  -".join(records) + "ER  -\n", encoding="utf-8")
-    (folder / "waymark.toml").write_text(CONFIG.format(cache=f"{cache}.sqlite"))
-    return folder
+    extra = f'\n[score]\ncache = "{cache}.sqlite"\nbatch_size = 32\n'
+    return make_small_project(tmp_path / cache, N_RECORDS, extra)
 
 
 def _n_descriptors() -> int:

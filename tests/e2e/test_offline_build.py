@@ -1,16 +1,13 @@
 """The whole build (intake, language detection, model, scoring, charts, PDF) with sockets blocked."""
 
 import json
-import shutil
-from pathlib import Path
 
 import pytest
 
+from tests.e2e.small_project import make_small_project
 from tests.unit.test_offline import GUARD, run_offline
 
 pytestmark = pytest.mark.model
-
-REPO = Path(__file__).resolve().parents[2]
 
 BUILD = GUARD + r"""
 from reporter.cli import main
@@ -20,26 +17,8 @@ finally:
     print(json.dumps({"attempts": attempts}))
 """
 
-CONFIG = """\
-[report]
-institution = "Kestrel Heath University"
-home_country = "IE"
-reporting_year = 2024
-output = "out"
-
-[[inputs]]
-path = "publications-2024.ris"
-
-[departments]
-staff_map = "staff.csv"
-"""
-
-
 def test_full_build_never_tries_the_network(tmp_path):
-    shutil.copy(REPO / "example_input" / "staff.csv", tmp_path / "staff.csv")
-    ris = (REPO / "example_input" / "publications-2024.ris").read_text(encoding="utf-8")
-    (tmp_path / "publications-2024.ris").write_text("ER  -".join(ris.split("ER  -")[:25]) + "ER  -\n", encoding="utf-8")
-    (tmp_path / "waymark.toml").write_text(CONFIG)
+    make_small_project(tmp_path, 25)
     done = run_offline(BUILD, tmp_path, timeout=600)
     assert done.returncode == 0, done.stderr[-3000:]
     result = json.loads(done.stdout.strip().splitlines()[-1])
