@@ -43,11 +43,15 @@ def text_hash(text: str) -> bytes:
 class EmbeddingCache:
     """Vectors by (model checksum, text hash). Use as a context manager or call close()."""
 
-    def __init__(self, path: Path, model_checksum: str, dimension: int):
-        path.parent.mkdir(parents=True, exist_ok=True)
+    def __init__(self, path: Path, model_checksum: str, dimension: int, read_only: bool = False):
         self.path = path
         self._model = model_checksum
         self._dimension = dimension
+        if read_only:
+            # Same queries, but no schema, journal or file changes (e.g. a Dask worker reading the main cache).
+            self._db = sqlite3.connect(f"{Path(path).resolve().as_uri()}?mode=ro", uri=True, timeout=60)
+            return
+        path.parent.mkdir(parents=True, exist_ok=True)
         self._db = sqlite3.connect(path)
         self._db.execute("PRAGMA journal_mode=WAL")
         self._db.execute("PRAGMA synchronous=NORMAL")

@@ -330,13 +330,6 @@ def _load_model(cfg: ScoreConfig, threads: int):
     return load_scoring_parts(model_only).embedder
 
 
-class _ReadOnlyCache(EmbeddingCache):
-    """The main cache file opened read-only: the same queries, no schema or journal changes."""
-
-    def __init__(self, path: Path, model_checksum: str, dimension: int):  # noqa: super() would write the file
-        self.path, self._model, self._dimension = path, model_checksum, dimension
-        self._db = sqlite3.connect(f"{path.resolve().as_uri()}?mode=ro", uri=True, timeout=60)
-
 
 class _WorkerCache(EmbeddingCache):
     """The worker's own cache file, read and written, over the main cache file, only read.
@@ -348,7 +341,7 @@ class _WorkerCache(EmbeddingCache):
         super().__init__(own, model_checksum, dimension)
         self._main = None
         if main.exists() and main.resolve() != own.resolve():
-            self._main = _ReadOnlyCache(main, model_checksum, dimension)
+            self._main = EmbeddingCache(main, model_checksum, dimension, read_only=True)
 
     def get_many(self, hashes: Sequence[bytes]) -> dict[bytes, np.ndarray]:
         found = super().get_many(hashes)
