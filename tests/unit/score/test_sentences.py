@@ -44,3 +44,66 @@ def test_short_units_are_not_tokenised_and_long_ones_are():
     out = fit_to_model([short, long], max_tokens=100, count_tokens=count)
     assert seen == [long.text], "a text shorter than the token budget cannot exceed it"
     assert out[0] == short and len(out) == 3
+
+
+# The fast path for plain prose must give pysbd's own answer (pysbd is the reference: the splits
+# stored in caches and the scores depend on it). Texts mix plain words with the tokens pysbd has
+# rules for: abbreviations, initials, numbers, lists, brackets, quotes, ellipses, URLs.
+_PLAIN = ("water study households rural found survey income women girls energy policy results we our the "
+          "in of for and with across schools clinics data model sample mean analysis trend effect").split()
+_CAPS = "The We A I Our This These US UK Results Water In Dr Fig Table Section Smith Ireland Kenya".split()
+_TRICKY = ("Dr. Fig. e.g. i.e. et al. vs. approx. no. No. 3.5 12% 2020. (n=40). [1]. \"quoted.\" 'end.' Mr. "
+           "St. J. K. U.S. www.example.org 1. 2. (i) (ii) ... ! ? ?! Tab. eq. ca. resp. pp. p. Inc. Ltd. Co. "
+           "a.m. p.m. km. kg. Eq. Vol. ed. eds. cf. viz. Jan. Oct. Ph.D. mRNA pH CO2. 10.5% -3. x. an. of. "
+           "is. it. II. (see below). [sic]. etc. Prof. Sr. Jr. Gov. Mt. al. fig. op. cit. ibid. Sept. "
+           "www.a.b/c.d name@example.org ; : -- \u2014 \u201cq.\u201d 3.14. .5 5. . ).").split()
+
+
+def _mixed_text(rng) -> str:
+    share = rng.choice([0.0, 0.02, 0.05, 0.15])
+    sentences = []
+    for _ in range(rng.randint(1, 5)):
+        words = [rng.choice(_CAPS)]
+        words += [rng.choice(_TRICKY) if rng.random() < share else rng.choice(_PLAIN + _CAPS[:3])
+                  for _ in range(rng.randint(2, 14))]
+        sentences.append(" ".join(words) + rng.choice([".", ".", ".", "?", "!", "", ".)", "..."]))
+    return " ".join(sentences)
+
+
+def test_fast_path_gives_pysbds_answer_wherever_it_answers():
+    import random
+
+    from reporter.score.sentences import _plain_split
+
+    splitter, rng = SentenceSplitter(), random.Random(11)
+    answered = 0
+    for _ in range(4000):
+        text = _mixed_text(rng)
+        fast = _plain_split(text)
+        if fast is not None:
+            answered += 1
+            assert fast == splitter.split_by_rules(text), text
+    assert answered > 800, "the fast path should answer for plain prose, not only for one-liners"
+
+
+def test_fast_path_leaves_rule_cases_to_pysbd():
+    from reporter.score.sentences import _plain_split
+
+    for text in ("Wells were sampled, e.g. Those near farms.", "Dr. Ng sampled wells. We found arsenic.",
+                 "Uptake rose in 2020. The cause was price.", "See www.example.org. Then stop.",
+                 "It fell... Then it rose.", "It fell (see Fig. 2). Then it rose.", "1. Wells. 2. Pumps."):
+        assert _plain_split(text) is None, text
+    assert _plain_split("Wells were sampled. A third held arsenic? We think so!") == [
+        "Wells were sampled.", "A third held arsenic?", "We think so!"]
+
+
+def test_dev_set_abstracts_split_as_pysbd_splits_them():
+    import json
+    from pathlib import Path
+
+    splitter = SentenceSplitter()
+    lines = (Path(__file__).parents[2] / "data" / "devset" / "abstracts.jsonl").read_text().splitlines()
+    for item in map(json.loads, lines):
+        text = " ".join((item["abstract"] or "").split())
+        if text:
+            assert splitter.split(text) == splitter.split_by_rules(text), item["id"]
