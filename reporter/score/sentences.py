@@ -24,6 +24,10 @@ _BOILERPLATE = re.compile(
     r"|creative commons|\bCC[ -]BY\b|this article is protected by)",
     re.IGNORECASE,
 )
+# One of these is in the case-folded text wherever the pattern above matches: a text with none is
+# passed without running the (slow, case-blind) pattern on each of its sentences.
+_BOILERPLATE_MARKS = ("©", "(c)", "copyright", "all rights reserved", "published by", "open access article",
+                      "creative commons", "cc by", "cc-by", "protected by")
 
 
 @dataclass(frozen=True)
@@ -118,9 +122,12 @@ def record_units(
     if "title" in text_fields and fields.get("title"):
         pieces.append(("title", " ".join(str(fields["title"]).split())))
     if "abstract" in text_fields and fields.get("abstract"):
-        pieces.extend(
-            ("abstract", s) for s in splitter.split(str(fields["abstract"])) if not _BOILERPLATE.search(s)
-        )
+        abstract = str(fields["abstract"])
+        sentences = splitter.split(abstract)
+        folded = " ".join(abstract.split()).casefold()
+        if any(mark in folded for mark in _BOILERPLATE_MARKS):
+            sentences = [s for s in sentences if not _BOILERPLATE.search(s)]
+        pieces.extend(("abstract", s) for s in sentences)
     keywords = fields.get("keywords") or ()
     if "keywords" in text_fields and keywords:
         pieces.append(("keywords", "Keywords: " + "; ".join(str(k) for k in keywords)))

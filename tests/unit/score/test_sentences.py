@@ -107,3 +107,20 @@ def test_dev_set_abstracts_split_as_pysbd_splits_them():
         text = " ".join((item["abstract"] or "").split())
         if text:
             assert splitter.split(text) == splitter.split_by_rules(text), item["id"]
+
+
+def test_boilerplate_precheck_passes_every_text_the_pattern_matches():
+    import random
+
+    from reporter.score.sentences import _BOILERPLATE, _BOILERPLATE_MARKS
+
+    phrases = ["© 2024 Elsevier", "(C) 2023 The Authors", "(c)2021", "COPYRIGHT", "Copyright:", "All rights\nreserved",
+               "all  RIGHTS reserved", "Published by", "published\tby Example Press", "This is an Open Access article",
+               "THIS IS AN OPEN ACCESS ARTICLE", "Creative\nCommons", "CC BY 4.0", "cc-by-nc", "(CC BY)",
+               "This article is protected by copyright", "This article is PROTECTED BY"]
+    rng = random.Random(2)
+    for _ in range(500):
+        text = " ".join(rng.choice(["Wells were sampled.", "We found arsenic", *phrases]) for _ in range(rng.randint(1, 6)))
+        if _BOILERPLATE.search(" ".join(text.split())):
+            folded = " ".join(text.split()).casefold()
+            assert any(mark in folded for mark in _BOILERPLATE_MARKS), text

@@ -44,3 +44,34 @@ def test_mention_precheck_never_hides_a_mention(framework):
 def test_keyword_hits_ignore_case():
     matcher = KeywordMatcher.build(("6",), [("sanitation", "drinking water")])
     assert matcher.hits("SANITATION and Drinking Water; sanitations") == [3]
+
+
+def _every_match(matcher: KeywordMatcher, text: str) -> list[int]:
+    """The long way round: each goal's whole pattern run over the whole text."""
+    lowered = text.lower()
+    return [len({m.group(0) for m in p.finditer(lowered)}) if p else 0 for p in matcher.patterns]
+
+
+def test_keyword_hits_tried_at_word_starts_equal_a_full_scan(framework):
+    import random
+
+    matcher = KeywordMatcher.build([g.code for g in framework.goals], [g.keywords for g in framework.goals])
+    keywords = [k for g in framework.goals for k in g.keywords]
+    filler = "the of water-based and in farmers aides said well-being, (R&D) e-wastes net-zero's".split()
+    rng = random.Random(5)
+    hit_some = 0
+    for _ in range(3000):
+        words = [rng.choice(keywords + filler + [k.upper() for k in keywords[:20]])
+                 + rng.choice(["", "s", "es", "-", "ing", ".", ","]) for _ in range(rng.randint(1, 30))]
+        text = rng.choice([" ", "", " - "]).join(words)
+        expected = _every_match(matcher, text)
+        assert matcher.hits(text) == expected, text
+        hit_some += any(expected)
+    assert hit_some > 2000, "the texts must actually contain keywords"
+
+
+def test_keyword_starting_with_punctuation_is_still_found():
+    matcher = KeywordMatcher.build(("9", "12"), [(".net", "r&d"), ("e-waste",)])
+    assert matcher.first_words[0] is None, "a keyword not starting with a word is scanned for the long way"
+    text = "Our ASP.NET tools and R&D budgets; e-wastes rose"
+    assert matcher.hits(text) == _every_match(matcher, text) == [2, 1]
