@@ -127,7 +127,7 @@ def run_size(n: int, prefill: bool, threads: int | None, backend: str, tracemall
     out["rss_mib_peak_pipeline"] = round(_rss_mib(), 1)
 
     if not prefill:
-        out.update(_bare_encode(distinct, embedder.info.path))
+        out.update(_bare_encode(distinct, embedder, threads))
         out["ratio_pipeline_over_bare"] = round(out["seconds_bare_encode"] / out["seconds_score_cold"], 3)
         out["ratio_pipeline_over_bare_cpu"] = round(out["cpu_seconds_bare_encode"] / out["cpu_seconds_score_cold"], 3)
         out["ratio_warm_speedup"] = round(out["seconds_score_cold"] / out["seconds_score_warm"], 1)
@@ -234,38 +234,66 @@ def _analysis_config():
     return AnalysisConfig()
 
 
-def _bare_encode(texts: list[str], model_path: str) -> dict:
-    """The same texts through SentenceTransformer.encode alone: the floor scoring is measured against."""
-    from sentence_transformers import SentenceTransformer
+def _bare_encoder(embedder, threads: int | None):
+    """The backend's model called directly on a list of texts: the floor scoring is measured against.
 
-    model = SentenceTransformer(model_path, device="cpu", local_files_only=True)
-    model.encode(texts[:64], batch_size=64)
+    fp32: `SentenceTransformer.encode(batch_size=64)`. int8: the same exported ONNX file through
+    ONNX Runtime alone, one sentence per call on each core, as the backend runs it.
+    """
+    if embedder.info.backend != "embedding-int8":
+        from sentence_transformers import SentenceTransformer
+
+        model = SentenceTransformer(embedder.info.path, device="cpu", local_files_only=True)
+        return "SentenceTransformer.encode fp32", lambda texts: model.encode(texts, batch_size=64, show_progress_bar=False)
+    from concurrent.futures import ThreadPoolExecutor
+
+    import onnxruntime
+    from transformers import AutoTokenizer
+
+    tokenizer = AutoTokenizer.from_pretrained(embedder.info.path, local_files_only=True)
+    options = onnxruntime.SessionOptions()
+    options.intra_op_num_threads = options.inter_op_num_threads = 1
+    session = onnxruntime.InferenceSession(str(embedder.onnx_path), options, providers=["CPUExecutionProvider"])
+    pool = ThreadPoolExecutor(threads or os.cpu_count() or 1)
+    names = ("input_ids", "attention_mask", "token_type_ids")
+
+    def encode(texts: list[str]) -> list[np.ndarray]:
+        encoded = tokenizer(texts, truncation=True, max_length=256)
+        run = lambda i: session.run(None, {k: np.asarray([encoded[k][i]], dtype=np.int64) for k in names})[0]  # noqa: E731
+        return list(pool.map(run, range(len(texts)), chunksize=16))
+
+    return "onnxruntime InferenceSession.run int8", encode
+
+
+def _bare_encode(texts: list[str], embedder, threads: int | None) -> dict:
+    """The same texts through the bare model alone (see `_bare_encoder`)."""
+    name, encode = _bare_encoder(embedder, threads)
+    encode(texts[:64])
     load = os.getloadavg()
     began, cpu = time.perf_counter(), _cpu_seconds()
-    model.encode(texts, batch_size=64, show_progress_bar=False)
+    encode(texts)
     seconds = time.perf_counter() - began
-    return {"seconds_bare_encode": round(seconds, 2), "cpu_seconds_bare_encode": round(_cpu_seconds() - cpu, 2),
+    return {"bare_reference": name, "seconds_bare_encode": round(seconds, 2),
+            "cpu_seconds_bare_encode": round(_cpu_seconds() - cpu, 2),
             "bare_sentences_per_second": round(len(texts) / seconds, 1), "load_average_before_bare": load}
 
 
-def run_interleaved(n: int, blocks: int, threads: int | None) -> dict:
+def run_interleaved(n: int, blocks: int, threads: int | None, backend: str) -> dict:
     """Cold scoring and bare encode in alternating blocks of the corpus, each block's pipeline run
     followed by the bare encode of the same block's distinct texts: on a shared machine, load that
     changes over minutes then weighs on both sides alike."""
-    from sentence_transformers import SentenceTransformer
-
     from reporter.config import ScoreConfig
     from reporter.score import load_scoring_parts, score
 
     records, _, _ = make_corpus(n)
-    cache_path = RESULTS / f"cache-interleaved-{n}.sqlite"
+    cache_path = RESULTS / f"cache-interleaved-{n}-{backend}.sqlite"
     for suffix in ("", "-wal", "-shm"):
         Path(f"{cache_path}{suffix}").unlink(missing_ok=True)
-    cfg = ScoreConfig(cache=cache_path, threads=threads)
+    cfg = ScoreConfig(cache=cache_path, threads=threads, backend=backend)
     parts = load_scoring_parts(cfg)
-    bare = SentenceTransformer(parts.embedder.info.path, device="cpu", local_files_only=True)
+    bare_name, bare = _bare_encoder(parts.embedder, threads)
     score(records.head(5), parts.framework, parts.embedder, cfg, cache=parts.cache, show_progress=False)
-    bare.encode(["warm-up sentence"] * 64, batch_size=64)
+    bare(["warm-up sentence"] * 64)
     seen: set[str] = set()
     pipeline_s = bare_s = 0.0
     n_texts = 0
@@ -278,11 +306,11 @@ def run_interleaved(n: int, blocks: int, threads: int | None) -> dict:
         score(block, parts.framework, parts.embedder, cfg, cache=parts.cache, show_progress=False)
         pipeline_s += time.perf_counter() - began
         began = time.perf_counter()
-        bare.encode(texts, batch_size=64, show_progress_bar=False)
+        bare(texts)
         bare_s += time.perf_counter() - began
         n_texts += len(texts)
     parts.close()
-    return {"n_publications": n, "blocks": blocks, "n_texts_encoded": n_texts,
+    return {"n_publications": n, "backend": backend, "bare_reference": bare_name, "blocks": blocks, "n_texts_encoded": n_texts,
             "seconds_score_cold": round(pipeline_s, 2), "seconds_bare_encode": round(bare_s, 2),
             "ratio_pipeline_over_bare": round(bare_s / pipeline_s, 3), "load_average_after": os.getloadavg()}
 
@@ -290,7 +318,7 @@ def run_interleaved(n: int, blocks: int, threads: int | None) -> dict:
 # --- driver ----------------------------------------------------------------------------------
 
 _TABLE = (
-    ("publications", "n_publications"), ("mode", "mode"), ("distinct texts", "n_distinct_texts"),
+    ("publications", "n_publications"), ("mode", "mode"), ("backend", "backend"), ("distinct texts", "n_distinct_texts"),
     ("cold score s", "seconds_score_cold"), ("warm score s", "seconds_score_warm"),
     ("analyse s", "seconds_analyse"), ("render s", "seconds_render"),
     ("bare encode s", "seconds_bare_encode"), ("bare sent/s", "bare_sentences_per_second"),
@@ -314,7 +342,8 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--prefill", action="store_true",
                         help="fill the cache with stand-in vectors and time only the warm path (for sizes too large to embed)")
     parser.add_argument("--threads", type=int, default=None)
-    parser.add_argument("--backend", default="embedding", choices=("embedding", "embedding-int8"))
+    parser.add_argument("--backend", default=None, choices=("embedding", "embedding-int8"),
+                        help="scoring backend (default: the configuration's default)")
     parser.add_argument("--tracemalloc", action="store_true", help="also trace Python allocations in the warm run")
     parser.add_argument("--int8", action="store_true", help="compare int8 with fp32 instead of timing sizes")
     parser.add_argument("--int8-sentences", type=int, default=3000)
@@ -322,6 +351,10 @@ def main(argv: list[str] | None = None) -> int:
                         help="cold score vs bare encode of N publications in 4 alternating blocks")
     parser.add_argument("--one", type=int, default=None, help=argparse.SUPPRESS)
     args = parser.parse_args(argv)
+    if args.backend is None:
+        from reporter.config import ScoreConfig
+
+        args.backend = ScoreConfig().backend
     RESULTS.mkdir(parents=True, exist_ok=True)
     stamp = time.strftime("%Y%m%d-%H%M%S")
     if args.int8:
@@ -332,7 +365,7 @@ def main(argv: list[str] | None = None) -> int:
         (RESULTS / f"int8-{stamp}.json").write_text(json.dumps(result, indent=2) + "\n", encoding="utf-8")
         return 0
     if args.interleaved:
-        result = run_interleaved(args.interleaved, 4, args.threads)
+        result = run_interleaved(args.interleaved, 4, args.threads, args.backend)
         print(json.dumps(result, indent=2))
         (RESULTS / f"interleaved-{stamp}.json").write_text(json.dumps(result, indent=2) + "\n", encoding="utf-8")
         return 0

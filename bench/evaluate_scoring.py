@@ -46,11 +46,16 @@ def load_labelled(path: Path) -> pd.DataFrame:
 class Prepared:
     """Everything that does not depend on the tunables, computed once."""
 
-    def __init__(self, frame: pd.DataFrame, framework_spec: str, cache_path: Path):
+    def __init__(self, frame: pd.DataFrame, framework_spec: str, cache_path: Path, backend: str = "embedding"):
         self.frame = frame
         self.framework = load_framework(framework_spec)
         self.codes = self.framework.goal_codes
-        embedder = SentenceEmbedder()
+        if backend == "embedding-int8":
+            from reporter.score.quantised import QuantisedEmbedder
+
+            embedder = QuantisedEmbedder(export_dir=cache_path.parent / "onnx")
+        else:
+            embedder = SentenceEmbedder()
         cache = EmbeddingCache(cache_path, embedder.info.checksum, embedder.info.dimension)
         stats = EncodeStats()
         self.space = build_goal_space(self.framework, embedder, cache, stats)
@@ -136,8 +141,9 @@ def main() -> None:
     parser.add_argument("--threshold", type=float, default=None)
     parser.add_argument("--sweep", action="store_true")
     parser.add_argument("--cache", type=Path, default=Path("bench/results/eval-cache.sqlite"))
+    parser.add_argument("--backend", default="embedding", choices=("embedding", "embedding-int8"))
     args = parser.parse_args()
-    prep = Prepared(load_labelled(args.labelled), args.framework, args.cache)
+    prep = Prepared(load_labelled(args.labelled), args.framework, args.cache, args.backend)
     if args.sweep:
         for row in sweep(prep)[:15]:
             print(json.dumps(row))

@@ -18,6 +18,12 @@ POLICY_TEXT = {
     "score_only": "aligned when the alignment score reaches the threshold; explicit mentions are reported but do not decide",
     "mention_only": "aligned only when the goal is mentioned explicitly",
 }
+BACKEND_TEXT = {
+    "embedding-int8": "sentence embeddings; the model's weights quantised to 8-bit integers for speed on ordinary "
+                      "processors (its vectors differ slightly from full precision, so a few borderline calls can differ)",
+    "embedding": "sentence embeddings at full precision (32-bit floating point)",
+    "nli": "zero-shot entailment with a cross-encoder",
+}
 COUNTING_TEXT = {
     "full": "full counting: a publication counts once for every department or country it involves",
     "fractional": "fractional counting: a publication involving k departments or countries counts 1/k for each",
@@ -147,7 +153,8 @@ def build_method(inputs: RenderInputs, goals: Sequence[tuple[str, str]]) -> Meth
     return MethodSection(
         inputs=inputs_rows, intake_totals=totals, reasons=_reasons(inputs.intake_log),
         coverage=_coverage(findings.coverage),
-        model={k: str(inputs.model_info.get(k, "")) for k in ("id", "checksum", "backend")},
+        model={**{k: str(inputs.model_info.get(k, "")) for k in ("id", "checksum", "backend")},
+               "method": BACKEND_TEXT.get(str(inputs.model_info.get("backend", "")), "")},
         framework={k: str(inputs.framework_info.get(k, "")) for k in ("id", "title", "version", "checksum")},
         threshold=None if varied or single is None else float(single),
         thresholds=thresholds,

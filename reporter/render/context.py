@@ -232,7 +232,7 @@ class MethodSection:
     intake_totals: InputRow = _h("The same counts over all files")
     reasons: tuple[CountRow, ...] = _h("Reasons records were set aside or merged, most frequent first")
     coverage: tuple[CountRow, ...] = _h("Coverage of abstracts, departments, countries, language")
-    model: dict = _h("Model id, checksum, backend")
+    model: dict = _h("Model id, checksum, backend, and method (the backend in words)")
     framework: dict = _h("Framework id, title, version, checksum")
     threshold: float | None = _h("The single threshold, or None when thresholds differ per goal")
     thresholds: tuple[CountRow, ...] = _h("Per-goal thresholds (label = goal, n = threshold) when they differ")

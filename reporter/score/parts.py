@@ -43,7 +43,9 @@ def load_scoring_parts(cfg: ScoreConfig) -> ScoringParts:
     elif cfg.backend == "embedding-int8":
         from reporter.score.quantised import QuantisedEmbedder
 
-        embedder = QuantisedEmbedder(cfg.model, threads=cfg.threads, batch_size=cfg.batch_size)
+        # The int8 export is kept beside the embedding cache, so it is made once per project.
+        export_dir = Path(cfg.cache).parent / "onnx" if cfg.cache is not None else None
+        embedder = QuantisedEmbedder(cfg.model, threads=cfg.threads, batch_size=cfg.batch_size, export_dir=export_dir)
     else:
         from reporter.score.embedder import SentenceEmbedder
 

@@ -137,7 +137,9 @@ def test_pdf_has_contents_page_numbers_and_sections(pdf_pages):
 def test_manifest_records_what_went_in(demo_build):
     manifest = json.loads((demo_build.out / "manifest.json").read_text(encoding="utf-8"))
     assert manifest["model"]["id"] == "sentence-transformers/all-MiniLM-L6-v2"
-    assert len(manifest["model"]["checksum"]) == 64
+    # The default backend: the packaged weights' checksum, marked as their int8 export.
+    assert manifest["model"]["backend"] == "embedding-int8"
+    assert re.fullmatch(r"[0-9a-f]{64}:onnx-int8", manifest["model"]["checksum"])
     assert manifest["framework"]["id"] == "un-sdg-2030" and len(manifest["framework"]["checksum"]) == 64
     assert {f["path"] for f in manifest["inputs"]} == {
         "publications-2025.bib", "publications-2024.ris", "cris-export-2022-2023.csv"}
