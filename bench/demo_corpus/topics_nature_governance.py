@@ -205,7 +205,7 @@ TOPICS = [
              "This study analyses grassroots peacebuilding initiatives in {place} and the conditions under which they succeed."),
         method=("The study draws on {n:30-80} oral history interviews with former combatants, victims and community workers, together with archival material held by local groups.",
                 "We combined ethnographic observation of commemorative events over {n:2-4} years with a survey of {n:500-1500} residents on trust and intergroup contact.",
-                "Interview transcripts were analysed using narrative methods attentive to silences and contested accounts."),
+                "Interview records were analysed using narrative methods attentive to silences and contested accounts."),
         result=("Shared storytelling projects created space for dialogue across divided communities, although participants stressed that acknowledgement mattered more than forgiveness.",
                 "Commemorations remained divisive, but cross-community initiatives had expanded, and residents who took part reported higher trust in the other community.",
                 "Women's groups played a prominent but under-recognised role in sustaining local peace work."),

@@ -104,7 +104,7 @@ TOPICS = [
                 "Gradient patterns in {obj}",
                 "Learning {obj}: evidence from artificial grammars"),
         background=("Theories of phonology differ on whether patterns such as {obj} are categorical rules or gradient tendencies shaped by usage.",
-                    "Much of the literature on {obj} relies on impressionistic transcription, which may hide systematic phonetic variation.",
+                    "Much of the literature on {obj} relies on impressionistic listening, which may hide systematic phonetic variation.",
                     "How speakers extend {obj} to words they have never heard is a direct test of what they have learned."),
         aim=("We examine the acoustic realisation of {obj} in spontaneous and read speech.",
              "This study tests whether speakers generalise {obj} to novel words, and which properties of the input drive generalisation."),
