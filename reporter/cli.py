@@ -112,7 +112,8 @@ def build(config_path: Path, out_dir: Path | None, sentences: bool, review_works
     stats = result.scores.stats
     click.echo(
         f"Scored {stats['n_records']} publications ({stats['n_sentences']} sentences, "
-        f"{stats['n_encoded']} embedded, {stats['n_cache_hits']} from the cache)."
+        f"{stats['n_encoded']} embedded, {stats['n_cache_hits']} from the cache; "
+        f"{stats.get('n_records_reused', 0)} publications' results reused from an earlier run)."
     )
     click.echo(f"Written to {config.output_dir}:")
     for label, path in result.written.items():

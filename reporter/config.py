@@ -153,7 +153,10 @@ class ScoreConfig(_Section):
         description="SQLite embedding cache file; relative to the config folder.",
     )
     use_cache: bool = Field(default=True, description="Set false to embed everything afresh and store nothing.")
-    batch_size: int = Field(default=64, ge=1, le=4096, description="Sentences per model call.")
+    batch_size: int = Field(
+        default=64, ge=1, le=4096,
+        description="Sentences per model call (embedding and nli backends; embedding-int8 runs one per call).",
+    )
     threads: int | None = Field(
         default=None, ge=1, description="CPU threads for the model; all cores when unset."
     )

@@ -196,8 +196,9 @@ def _manifest(config, intake, scores, framework_info, model_info, score_settings
         "scores": int(len(scores.table)),
         "sentences": int(scores.stats["n_sentences"]),
     }
-    # Cache hits and timings differ between a cold and a warm run of the same inputs; leave them out.
-    manifest["scoring_run"] = {k: scores.stats[k] for k in ("n_records", "n_sentences", "n_unique_sentences")}
+    # Cache hits, reused publications and timings differ between a cold and a warm run of the same
+    # inputs (distinct sentences too: a warm run splits only what it scores anew); leave them out.
+    manifest["scoring_run"] = {k: scores.stats[k] for k in ("n_records", "n_sentences")}
     return manifest
 
 

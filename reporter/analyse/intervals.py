@@ -85,9 +85,12 @@ def difference_p_value(x1: float, n1: float, x2: float, n2: float) -> float:
     pooled = (x1 + x2) / (n1 + n2)
     if pooled in (0.0, 1.0):
         return 1.0
-    result = test_proportions_2indep(
-        x1, n1, x2, n2, value=0, method="score", compare="diff", alternative="two-sided", correction=False
-    )
+    # statsmodels divides by a group's own variance, zero when a group is all 0 or all 1; the
+    # score statistic it returns is still right (pooled variance), so only the warning is silenced.
+    with np.errstate(divide="ignore", invalid="ignore"):
+        result = test_proportions_2indep(
+            x1, n1, x2, n2, value=0, method="score", compare="diff", alternative="two-sided", correction=False
+        )
     return float(result.pvalue)
 
 

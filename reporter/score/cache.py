@@ -1,4 +1,5 @@
-"""SQLite embedding cache keyed by model checksum + text hash; sentence splits keyed by splitter + text hash.
+"""SQLite embedding cache keyed by model checksum + text hash; sentence splits keyed by splitter + text hash;
+whole per-publication results keyed by method key + record hash (reporter/score/reuse.py).
 
 Each batch is committed as soon as it is embedded, so a run killed mid-way
 keeps what it finished and the next run resumes from there. WAL journaling
@@ -28,6 +29,13 @@ CREATE TABLE IF NOT EXISTS splits (
     text_hash BLOB NOT NULL,
     sentences TEXT NOT NULL,
     PRIMARY KEY (splitter, text_hash)
+);
+CREATE TABLE IF NOT EXISTS record_results (
+    method TEXT NOT NULL,
+    record_hash BLOB NOT NULL,
+    numbers BLOB NOT NULL,
+    detail TEXT NOT NULL,
+    PRIMARY KEY (method, record_hash)
 )
 """
 # Sentence splitting costs about as much per abstract as embedding one sentence; a warm re-run
@@ -58,19 +66,19 @@ class EmbeddingCache:
         self._db.executescript(_SCHEMA)
         self._db.commit()
 
-    def get_many(self, hashes: Sequence[bytes]) -> dict[bytes, np.ndarray]:
-        found: dict[bytes, np.ndarray] = {}
+    def _select(self, query: str, owner: str, hashes: Sequence[bytes]):
+        """Rows of `query` (its IN list left as {marks}) for `owner` and the hashes, in chunks."""
         for start in range(0, len(hashes), _CHUNK):
             chunk = list(hashes[start : start + _CHUNK])
-            marks = ",".join("?" * len(chunk))
-            rows = self._db.execute(
-                f"SELECT text_hash, vector FROM embeddings WHERE model = ? AND text_hash IN ({marks})",
-                [self._model, *chunk],
-            )
-            for key, blob in rows:
-                vector = np.frombuffer(blob, dtype=np.float32)
-                if vector.shape[0] == self._dimension:
-                    found[key] = vector
+            yield from self._db.execute(query.format(marks=",".join("?" * len(chunk))), [owner, *chunk])
+
+    def get_many(self, hashes: Sequence[bytes]) -> dict[bytes, np.ndarray]:
+        found: dict[bytes, np.ndarray] = {}
+        query = "SELECT text_hash, vector FROM embeddings WHERE model = ? AND text_hash IN ({marks})"
+        for key, blob in self._select(query, self._model, hashes):
+            vector = np.frombuffer(blob, dtype=np.float32)
+            if vector.shape[0] == self._dimension:
+                found[key] = vector
         return found
 
     def put_many(self, items: Iterable[tuple[bytes, np.ndarray]]) -> None:
@@ -82,21 +90,25 @@ class EmbeddingCache:
 
     def get_splits(self, splitter: str, hashes: Sequence[bytes]) -> dict[bytes, list[str]]:
         """Stored sentence splits by text hash, for the splitter named (its rules and version)."""
-        found: dict[bytes, list[str]] = {}
-        for start in range(0, len(hashes), _CHUNK):
-            chunk = list(hashes[start : start + _CHUNK])
-            marks = ",".join("?" * len(chunk))
-            rows = self._db.execute(
-                f"SELECT text_hash, sentences FROM splits WHERE splitter = ? AND text_hash IN ({marks})",
-                [splitter, *chunk],
-            )
-            found.update((key, text.split(_SPLIT_SEP) if text else []) for key, text in rows)
-        return found
+        query = "SELECT text_hash, sentences FROM splits WHERE splitter = ? AND text_hash IN ({marks})"
+        return {key: text.split(_SPLIT_SEP) if text else [] for key, text in self._select(query, splitter, hashes)}
 
     def put_splits(self, splitter: str, items: Iterable[tuple[bytes, list[str]]]) -> None:
         self._db.executemany(
             "INSERT OR REPLACE INTO splits (splitter, text_hash, sentences) VALUES (?, ?, ?)",
             [(splitter, key, _SPLIT_SEP.join(sentences)) for key, sentences in items],
+        )
+        self._db.commit()
+
+    def get_results(self, method: str, hashes: Sequence[bytes]) -> dict[bytes, tuple[bytes, str]]:
+        """Stored per-publication results (numbers blob, detail JSON) by record hash."""
+        query = "SELECT record_hash, numbers, detail FROM record_results WHERE method = ? AND record_hash IN ({marks})"
+        return {key: (numbers, detail) for key, numbers, detail in self._select(query, method, hashes)}
+
+    def put_results(self, method: str, items: Iterable[tuple[bytes, tuple[bytes, str]]]) -> None:
+        self._db.executemany(
+            "INSERT OR REPLACE INTO record_results (method, record_hash, numbers, detail) VALUES (?, ?, ?, ?)",
+            [(method, key, numbers, detail) for key, (numbers, detail) in items],
         )
         self._db.commit()
 

@@ -231,13 +231,13 @@ def _combined(parts: Sequence[Scores], framework: GoalFramework, cfg: ScoreConfi
     first = parts[0]
     sentences = [p.sentences for p in parts if p.sentences is not None]
     # Every partition embeds the goal space again; count those texts once, as a local run does.
-    n_goal_texts, n_goal_unique = _goal_space_texts(framework, cfg)
+    n_goal_unique = _goal_space_unique_texts(framework, cfg)
     repeats = len(parts) - 1
-    summed = {k: sum(p.stats[k] for p in parts) for k in ("n_records", "n_sentences", "n_unique_sentences",
-                                                         "n_cache_hits", "n_encoded", "seconds_encoding")}
+    summed = {k: sum(p.stats[k] for p in parts) for k in ("n_records", "n_sentences", "n_records_reused",
+                                                         "n_unique_sentences", "n_cache_hits", "n_encoded",
+                                                         "seconds_encoding")}
     stats = {
         **summed,
-        "n_sentences": summed["n_sentences"] - repeats * n_goal_texts,
         "n_unique_sentences": summed["n_unique_sentences"] - repeats * n_goal_unique,
         "seconds_encoding": round(summed["seconds_encoding"], 3),  # worker-seconds, summed over workers
         "sentences_per_second": (
@@ -260,13 +260,11 @@ def _rows(frames: Iterable[pd.DataFrame]) -> list[tuple]:
     return [row for frame in frames for row in frame.itertuples(index=False, name=None)]
 
 
-def _goal_space_texts(framework: GoalFramework, cfg: ScoreConfig) -> tuple[int, int]:
-    """Texts (all, distinct) that `score()` embeds for the goal space: descriptors, then background."""
+def _goal_space_unique_texts(framework: GoalFramework, cfg: ScoreConfig) -> int:
+    """Distinct texts `score()` embeds for the goal space (descriptors, then background, each deduplicated)."""
     if cfg.backend == "nli":
-        return 0, 0
-    descriptors = [text for goal in framework.goals for text in goal.descriptors]
-    background = list(framework.background)
-    return len(descriptors) + len(background), len(set(descriptors)) + len(set(background))
+        return 0
+    return len({text for goal in framework.goals for text in goal.descriptors}) + len(set(framework.background))
 
 
 def _uses_cache(cfg: ScoreConfig) -> bool:
@@ -343,17 +341,20 @@ class _WorkerCache(EmbeddingCache):
         if main.exists() and main.resolve() != own.resolve():
             self._main = EmbeddingCache(main, model_checksum, dimension, read_only=True)
 
-    def get_many(self, hashes: Sequence[bytes]) -> dict[bytes, np.ndarray]:
-        found = super().get_many(hashes)
+    def _own_then_main(self, name: str, *args, hashes: Sequence[bytes]) -> dict:
+        found = getattr(super(), name)(*args, hashes)
         if self._main is not None and len(found) < len(hashes):
-            found.update(self._main.get_many([h for h in hashes if h not in found]))
+            found.update(getattr(self._main, name)(*args, [h for h in hashes if h not in found]))
         return found
 
+    def get_many(self, hashes: Sequence[bytes]) -> dict[bytes, np.ndarray]:
+        return self._own_then_main("get_many", hashes=hashes)
+
     def get_splits(self, splitter: str, hashes: Sequence[bytes]) -> dict[bytes, list[str]]:
-        found = super().get_splits(splitter, hashes)
-        if self._main is not None and len(found) < len(hashes):
-            found.update(self._main.get_splits(splitter, [h for h in hashes if h not in found]))
-        return found
+        return self._own_then_main("get_splits", splitter, hashes=hashes)
+
+    def get_results(self, method: str, hashes: Sequence[bytes]) -> dict[bytes, tuple[bytes, str]]:
+        return self._own_then_main("get_results", method, hashes=hashes)
 
     def close(self) -> None:
         super().close()

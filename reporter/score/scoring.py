@@ -25,6 +25,7 @@ from reporter.score.evidence import pick_evidence
 from reporter.score.framework import GoalFramework
 from reporter.score.lexical import KeywordMatcher, lexical_score
 from reporter.score.mentions import compile_mentions, find_mentions
+from reporter.score.reuse import RecordResult, decode_result, encode_result, method_key, record_key
 from reporter.score.sentences import KnownSplits, SentenceSplitter, TextUnit, fit_to_model, record_units
 
 log = logging.getLogger(__name__)
@@ -141,22 +142,33 @@ def score(
     keywords = KeywordMatcher.build(codes, [goal.keywords for goal in framework.goals])
     splitter = SentenceSplitter()
 
+    reuse = None
+    if cache is not None:
+        reuse = (cache, method_key(
+            model=embedder.info.checksum, framework=framework.checksum, codes=codes, thresholds=thresholds,
+            policy=cfg.policy, text_fields=list(cfg.text_fields), method=asdict(method), splitter=splitter.name,
+        ))
+
     tables, evidence_rows, general_rows, sentence_tables = [], [], [], []
+    n_units = n_reused = 0
     progress = _progress(len(records), show_progress)
     for start in range(0, len(records), CHUNK_RECORDS):
         chunk = records.iloc[start : start + CHUNK_RECORDS]
         chunk_splitter = _known_splits(chunk, cfg, splitter, cache)
         result = _score_chunk(
             chunk, cfg, codes, scorer, patterns, keywords, chunk_splitter, embedder, method, threshold_row,
-            keep_sentences,
+            keep_sentences, reuse,
         )
         if cache is not None and chunk_splitter.new:
             cache.put_splits(chunk_splitter.name, ((text_hash(t), s) for t, s in chunk_splitter.new.items()))
-        tables.append(result[0])
-        evidence_rows.extend(result[1])
-        general_rows.extend(result[2])
-        if keep_sentences:
-            sentence_tables.append(result[3])
+        table, evidence, general = _chunk_tables(chunk["record_id"].tolist(), codes, result.results)
+        tables.append(table)
+        evidence_rows.extend(evidence)
+        general_rows.extend(general)
+        n_units += sum(r.n_units for r in result.results)
+        n_reused += result.n_reused
+        if keep_sentences and result.sentences is not None:
+            sentence_tables.append(result.sentences)
         if progress is not None:
             progress.update(len(chunk))
             elapsed = max(stats.seconds_encoding, 1e-9)
@@ -176,7 +188,9 @@ def score(
         method=asdict(method),
         stats={
             "n_records": len(records),
-            "n_sentences": stats.n_texts,
+            # Sentences of every publication, reused ones included; the rest count this run's work only.
+            "n_sentences": n_units,
+            "n_records_reused": n_reused,
             "n_unique_sentences": stats.n_unique,
             "n_cache_hits": stats.n_cache_hits,
             "n_encoded": stats.n_encoded,
@@ -205,55 +219,108 @@ def _known_splits(chunk: pd.DataFrame, cfg: ScoreConfig, splitter: SentenceSplit
     return KnownSplits(splitter, {t: stored[k] for t, k in zip(texts, keys) if k in stored})
 
 
+@dataclass
+class _ChunkResults:
+    """Per-publication results of one chunk, in record order, whether computed now or reused."""
+
+    results: list[RecordResult]
+    sentences: pd.DataFrame | None = None
+    n_reused: int = 0
+
+
 def _score_chunk(chunk, cfg, codes, scorer, patterns, keywords, splitter, embedder, method, threshold_row,
-                 keep_sentences):
-    record_ids = chunk["record_id"].tolist()
+                 keep_sentences, reuse) -> _ChunkResults:
+    """Results for the chunk: stored ones where the record and method are unchanged, the rest computed."""
+    fields = [{f: getattr(row, f) for f in ("title", "abstract", "keywords") if hasattr(row, f)}
+              for row in chunk.itertuples(index=False)]
+    keys = [record_key(f, cfg.text_fields) for f in fields] if reuse is not None else []
+    stored: dict[int, RecordResult] = {}
+    if reuse is not None and not keep_sentences:  # the per-sentence table needs every sentence scored
+        cache, key = reuse
+        found = cache.get_results(key, keys)
+        for i, k in enumerate(keys):
+            if k in found and (result := decode_result(*found[k], len(codes))) is not None:
+                stored[i] = result
+    todo = [i for i in range(len(chunk)) if i not in stored]
+    computed, sentences = _compute_results(
+        [fields[i] for i in todo], [chunk["record_id"].iat[i] for i in todo], cfg, codes, scorer, patterns,
+        keywords, splitter, embedder, method, threshold_row, keep_sentences,
+    )
+    if reuse is not None and computed:
+        cache, key = reuse
+        cache.put_results(key, ((keys[i], encode_result(r)) for i, r in zip(todo, computed)))
+    stored.update(zip(todo, computed))
+    return _ChunkResults([stored[i] for i in range(len(chunk))], sentences, len(chunk) - len(todo))
+
+
+def _compute_results(fields, record_ids, cfg, codes, scorer, patterns, keywords, splitter, embedder, method,
+                     threshold_row, keep_sentences) -> tuple[list[RecordResult], pd.DataFrame | None]:
     units: list[TextUnit] = []
-    n_goals = len(codes)
-    explicit_counts = np.zeros((len(chunk), n_goals), dtype=np.int32)
-    lexical = np.zeros((len(chunk), n_goals), dtype=np.float32)
-    general_rows = []
+    n, n_goals = len(record_ids), len(codes)
+    explicit_counts = np.zeros((n, n_goals), dtype=np.int32)
+    lexical = np.zeros((n, n_goals), dtype=np.float32)
+    n_general = []
     code_index = {code: g for g, code in enumerate(codes)}
-    for i, row in enumerate(chunk.itertuples(index=False)):
-        fields = {f: getattr(row, f) for f in ("title", "abstract", "keywords") if hasattr(row, f)}
-        units.extend(record_units(row.record_id, fields, cfg.text_fields, splitter))
-        full_text = _joined_text(fields, cfg.text_fields)
+    for i, (record_id, texts) in enumerate(zip(record_ids, fields)):
+        units.extend(record_units(i, texts, cfg.text_fields, splitter))  # local index; ids set below
+        full_text = _joined_text(texts, cfg.text_fields)
         found = find_mentions(full_text, patterns)
         for code, mentions in found.by_goal.items():
             if code in code_index:
                 explicit_counts[i, code_index[code]] = len(mentions)
-        general_rows.append((row.record_id, found.n_general))
+        n_general.append(found.n_general)
         hits = keywords.hits(full_text)
         lexical[i] = [lexical_score(h, method.lexical_scale) for h in hits]
 
     units = fit_to_model(units, embedder.info.max_tokens, embedder.count_tokens)
     per_sentence = scorer([u.text for u in units]) if units else np.zeros((0, n_goals), np.float32)
-    position = {rid: i for i, rid in enumerate(record_ids)}
-    unit_record = np.array([position[u.record_id] for u in units], dtype=np.int64)
-    semantic = aggregate_by_record(unit_record, per_sentence, len(chunk), method.align.top_k)
+    unit_record = np.array([u.record_id for u in units], dtype=np.int64)
+    semantic = aggregate_by_record(unit_record, per_sentence, n, method.align.top_k)
     # Noisy-or: the keyword signal can lift a score but never lower it.
     combined = semantic + (1.0 - semantic) * method.lexical_weight * lexical
     explicit = explicit_counts > 0
     aligned = decide(combined, explicit, threshold_row, cfg.policy)
 
     evidence_rows, best_text, best_score = pick_evidence(
-        units, unit_record, per_sentence, aligned, explicit, record_ids, codes, patterns, EVIDENCE_PER_PAIR,
+        units, unit_record, per_sentence, aligned, explicit, list(range(n)), codes, patterns, EVIDENCE_PER_PAIR,
     )
-    n, g = len(chunk), n_goals
-    table = pd.DataFrame({
-        "record_id": np.repeat(record_ids, g),
-        "goal": np.tile(codes, n),
-        "alignment_score": np.round(combined.reshape(-1).astype(float), 6),
-        "n_explicit_mentions": explicit_counts.reshape(-1),
-        "is_explicit": explicit.reshape(-1),
-        "is_aligned": aligned.reshape(-1),
-        "evidence": best_text.reshape(-1),
-        "evidence_score": np.round(best_score.reshape(-1).astype(float), 6),
-    })
+    evidence_by_record: list[list[tuple]] = [[] for _ in range(n)]
+    for row in evidence_rows:
+        evidence_by_record[row[0]].append(row[1:])
+    units_per_record = np.bincount(unit_record, minlength=n) if units else np.zeros(n, dtype=np.int64)
+    results = [
+        RecordResult(
+            score=combined[i].astype(np.float32), n_explicit=explicit_counts[i], aligned=aligned[i],
+            best_score=best_score[i], best_text=tuple(best_text[i]), evidence=tuple(evidence_by_record[i]),
+            n_general=int(n_general[i]), n_units=int(units_per_record[i]),
+        )
+        for i in range(n)
+    ]
     sentences = None
     if keep_sentences:
         sentences = _sentence_table(units, per_sentence, codes)
-    return table, evidence_rows, general_rows, sentences
+        sentences["record_id"] = [record_ids[i] for i in sentences["record_id"]]
+    return results, sentences
+
+
+def _chunk_tables(record_ids: list, codes: tuple[str, ...], results: list[RecordResult]):
+    """The score-table rows, evidence rows and general-mention rows of a chunk's results."""
+    n, g = len(record_ids), len(codes)
+    empty = np.zeros((0, g))
+    stack = lambda name, dtype: np.vstack([getattr(r, name) for r in results]).astype(dtype) if n else empty  # noqa: E731
+    table = pd.DataFrame({
+        "record_id": np.repeat(record_ids, g),
+        "goal": np.tile(codes, n),
+        "alignment_score": np.round(stack("score", np.float32).reshape(-1).astype(float), 6),
+        "n_explicit_mentions": stack("n_explicit", np.int32).reshape(-1),
+        "is_explicit": (stack("n_explicit", np.int32) > 0).reshape(-1),
+        "is_aligned": stack("aligned", bool).reshape(-1),
+        "evidence": [t for r in results for t in r.best_text],
+        "evidence_score": np.round(stack("best_score", np.float32).reshape(-1).astype(float), 6),
+    })
+    evidence = [(rid, *row) for rid, r in zip(record_ids, results) for row in r.evidence]
+    general = [(rid, r.n_general) for rid, r in zip(record_ids, results)]
+    return table, evidence, general
 
 
 def _joined_text(fields: dict, text_fields) -> str:

@@ -72,11 +72,57 @@ def test_pure_mathematics_stays_below_threshold_for_every_goal(scored):
     assert not rows["is_aligned"].any()
 
 
-def test_warm_run_hits_cache_for_every_sentence_and_gives_identical_results(scored):
-    _, cold, warm = scored
+def test_warm_run_reuses_every_publication_and_gives_identical_results(scored):
+    records, cold, warm = scored
+    assert cold.stats["n_records_reused"] == 0
+    assert warm.stats["n_records_reused"] == len(records), "unchanged publications are not scored again"
     assert warm.stats["n_encoded"] == 0, "a second run over the same inputs does no model inference"
     assert warm.stats["n_cache_hits"] == warm.stats["n_unique_sentences"]
+    assert warm.stats["n_sentences"] == cold.stats["n_sentences"]
     pd.testing.assert_frame_equal(cold.table, warm.table)
+    pd.testing.assert_frame_equal(cold.evidence, warm.evidence)
+    pd.testing.assert_frame_equal(cold.general_mentions, warm.general_mentions)
+
+
+def test_only_changed_publications_are_scored_again_and_results_equal_a_fresh_run(scored, embedder, framework,
+                                                                                  tmp_path):
+    records, cold, _ = scored
+    path = tmp_path / "c.sqlite"
+    cfg = ScoreConfig()
+    with EmbeddingCache(path, embedder.info.checksum, embedder.info.dimension) as cache:
+        score(records, framework, embedder, cfg, cache=cache, show_progress=False)
+    edited = records.copy()
+    # Goal 1's record now reads like goal 14 (in words no other record has: a text seen before is reused).
+    edited.loc[0, "abstract"] = UNMISTAKABLE["14"] + " Divers repeated the reef survey two years later."
+    edited.loc[1, "record_id"] = "renamed"  # same text under another id: still reused
+    with EmbeddingCache(path, embedder.info.checksum, embedder.info.dimension) as cache:
+        again = score(edited, framework, embedder, cfg, cache=cache, show_progress=False)
+        stricter = score(edited, framework, embedder, cfg, cache=cache, show_progress=False,
+                         thresholds={code: 0.9 for code in UNMISTAKABLE})
+    fresh = score(edited, framework, embedder, cfg, cache=None, show_progress=False)
+    assert again.stats["n_records_reused"] == len(records) - 1
+    pd.testing.assert_frame_equal(again.table, fresh.table)
+    pd.testing.assert_frame_equal(again.evidence, fresh.evidence)
+    top = again.table[again.table["record_id"] == "g1"].sort_values("alignment_score").iloc[-1]
+    assert top["goal"] == "14"
+    assert "renamed" in set(again.table["record_id"]) and "g2" not in set(again.table["record_id"])
+    # Other thresholds make other decisions: nothing stored under the old ones is used.
+    assert stricter.stats["n_records_reused"] == 0
+    assert stricter.table["is_aligned"].sum() < again.table["is_aligned"].sum()
+
+
+def test_asking_for_the_sentence_table_scores_every_publication(scored, embedder, framework, tmp_path):
+    records, cold, _ = scored
+    path = tmp_path / "c.sqlite"
+    cfg = ScoreConfig()
+    with EmbeddingCache(path, embedder.info.checksum, embedder.info.dimension) as cache:
+        score(records, framework, embedder, cfg, cache=cache, show_progress=False)
+        with_sentences = score(records, framework, embedder, cfg, cache=cache, show_progress=False,
+                               keep_sentences=True)
+    assert with_sentences.stats["n_records_reused"] == 0
+    assert len(with_sentences.sentences) == cold.stats["n_sentences"]
+    assert set(with_sentences.sentences["record_id"]) == set(records["record_id"])
+    pd.testing.assert_frame_equal(with_sentences.table, cold.table)
 
 
 def test_every_aligned_pair_has_evidence(scored):

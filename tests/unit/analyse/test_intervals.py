@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+import warnings
 
 import numpy as np
 import pytest
@@ -38,6 +39,19 @@ def test_newcombe_bounds_stay_within_minus_one_and_one():
 def test_p_value_for_identical_all_zero_groups_is_one():
     assert difference_p_value(0, 30, 0, 40) == 1.0
     assert math.isnan(difference_p_value(0, 0, 1, 4))
+
+
+def test_p_value_when_one_group_is_all_successes_warns_of_nothing_and_matches_pearson():
+    # Reference: Pearson's chi-squared on the 2x2 table without continuity correction
+    # (scipy.stats.chi2_contingency, correction=False), equal to the score test under H0.
+    from scipy.stats import chi2_contingency
+
+    for x1, n1, x2, n2 in ((5, 5, 1, 6), (0, 4, 3, 7), (12, 12, 0, 9)):
+        with warnings.catch_warnings():
+            warnings.simplefilter("error")
+            p = difference_p_value(x1, n1, x2, n2)
+        expected = chi2_contingency([[x1, n1 - x1], [x2, n2 - x2]], correction=False).pvalue
+        assert p == pytest.approx(expected, rel=1e-9)
 
 
 def test_bh_adjust_of_nothing_is_empty():
