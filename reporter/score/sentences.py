@@ -92,8 +92,35 @@ class SentenceSplitter:
         return self.split_by_rules(text)
 
     def split_by_rules(self, text: str) -> list[str]:
-        """pysbd's answer, for any text (whitespace already collapsed)."""
-        return [s.strip() for s in self._segmenter.segment(text) if s.strip()]
+        """pysbd's answer, for any text (whitespace already collapsed).
+
+        pysbd's `segment` maps each sentence back onto the text with a regular expression built
+        from that sentence (compiled anew every time: half its run time, measured); `_in_text`
+        does the same mapping with str.find. Tests check the result against `segment` itself.
+        """
+        sentences = self._segmenter.processor(text).process()
+        if not all(sentences):  # an empty sentence would need the regex's zero-width behaviour
+            return [s.strip() for s in self._segmenter.segment(text) if s.strip()]
+        return [s.strip() for s in _in_text(sentences, text) if s.strip()]
+
+
+def _in_text(sentences: list[str], text: str) -> list[str]:
+    """pysbd's `sentences_with_char_spans` for non-empty sentences: each sentence with the whitespace
+    after it, at its first occurrence in the text that ends beyond the previous one's; a sentence
+    not found there is dropped."""
+    out, prior_end = [], 0
+    for sentence in sentences:
+        at = text.find(sentence)
+        while at >= 0:
+            end = at + len(sentence)
+            while end < len(text) and text[end].isspace():
+                end += 1
+            if end > prior_end:
+                out.append(text[at:end])
+                prior_end = end
+                break
+            at = text.find(sentence, end)  # the regex scan resumes after the match it passed over
+    return out
 
 
 class KnownSplits:
