@@ -20,7 +20,7 @@ POLICY_TEXT = {
 }
 BACKEND_TEXT = {
     "embedding-int8": "sentence embeddings; the model's weights quantised to 8-bit integers for speed on ordinary "
-                      "processors (its vectors differ slightly from full precision, so a few borderline calls can differ)",
+                      "processors; its vectors differ slightly from full precision, so a few borderline calls can differ",
     "embedding": "sentence embeddings at full precision (32-bit floating point)",
     "nli": "zero-shot entailment with a cross-encoder",
 }

@@ -132,6 +132,9 @@ def test_pdf_has_contents_page_numbers_and_sections(pdf_pages):
     for phrase in CAUTIONS:
         assert phrase in full
     assert re.search(r"Page 3 of \d+", _plain(pdf_pages[2])), "running page numbers"
+    # The method page says how the default backend runs the model and what that costs.
+    assert "embedding-int8 backend" in full and "weights quantised to 8-bit integers" in full
+    assert "a few borderline calls can differ" in full
 
 
 def test_manifest_records_what_went_in(demo_build):
