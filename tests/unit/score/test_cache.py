@@ -59,3 +59,27 @@ def test_batches_are_committed_as_they_finish(tmp_path):
             pass
     with EmbeddingCache(tmp_path / "c.sqlite", "m", 3) as cache:
         assert cache.count() == 2
+
+
+def test_writes_in_the_background_are_seen_by_the_next_read(tmp_path):
+    # More batches than the writer queue holds: put_many waits rather than grow without bound.
+    with EmbeddingCache(tmp_path / "c.sqlite", "model-1", 3) as cache:
+        for batch in range(40):
+            cache.put_many((f"{batch}-{i}".encode(), np.full(3, batch, np.float32)) for i in range(5))
+            found = cache.get_many([f"{batch}-4".encode()])
+            assert np.array_equal(found[f"{batch}-4".encode()], np.full(3, batch, np.float32))
+        assert cache.count() == 200
+
+
+def test_a_failed_background_write_is_raised_not_lost(tmp_path):
+    import sqlite3
+
+    import pytest
+
+    path = tmp_path / "c.sqlite"
+    cache = EmbeddingCache(path, "model-1", 3)
+    with sqlite3.connect(path) as other:
+        other.execute("DROP TABLE embeddings")
+    cache.put_many([(b"k", np.ones(3, np.float32))])
+    with pytest.raises(sqlite3.OperationalError, match="embeddings"):
+        cache.close()
