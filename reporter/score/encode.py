@@ -22,7 +22,6 @@ class Embedder(Protocol):
 class EncodeStats:
     """Running totals over a scoring run (mutable on purpose: one per run, owned by `score`)."""
 
-    n_texts: int = 0
     n_unique: int = 0
     n_cache_hits: int = 0
     n_encoded: int = 0
@@ -41,7 +40,6 @@ def embed_texts(
     """Vectors for `texts` in order; each distinct text is encoded at most once (and never if cached)."""
     import time
 
-    stats.n_texts += len(texts)
     unique: dict[str, int] = {}
     for text in texts:
         unique.setdefault(text, len(unique))

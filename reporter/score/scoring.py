@@ -95,7 +95,6 @@ class _EntailmentSentenceScorer:
 
     def __call__(self, texts: list[str]) -> np.ndarray:
         distinct = list(dict.fromkeys(texts))
-        self._stats.n_texts += len(texts)
         self._stats.n_unique += len(distinct)
         began = time.perf_counter()
         table = self._model.entailment(distinct, self._titles) if distinct else np.zeros((0, len(self._titles)))
@@ -306,17 +305,20 @@ def _compute_results(fields, record_ids, cfg, codes, scorer, patterns, keywords,
 def _chunk_tables(record_ids: list, codes: tuple[str, ...], results: list[RecordResult]):
     """The score-table rows, evidence rows and general-mention rows of a chunk's results."""
     n, g = len(record_ids), len(codes)
-    empty = np.zeros((0, g))
-    stack = lambda name, dtype: np.vstack([getattr(r, name) for r in results]).astype(dtype) if n else empty  # noqa: E731
+
+    def stacked(name: str, dtype) -> np.ndarray:
+        return np.vstack([getattr(r, name) for r in results]).astype(dtype).reshape(-1) if n else np.zeros(0, dtype)
+
+    n_explicit = stacked("n_explicit", np.int32)
     table = pd.DataFrame({
         "record_id": np.repeat(record_ids, g),
         "goal": np.tile(codes, n),
-        "alignment_score": np.round(stack("score", np.float32).reshape(-1).astype(float), 6),
-        "n_explicit_mentions": stack("n_explicit", np.int32).reshape(-1),
-        "is_explicit": (stack("n_explicit", np.int32) > 0).reshape(-1),
-        "is_aligned": stack("aligned", bool).reshape(-1),
+        "alignment_score": np.round(stacked("score", np.float32).astype(float), 6),
+        "n_explicit_mentions": n_explicit,
+        "is_explicit": n_explicit > 0,
+        "is_aligned": stacked("aligned", bool),
         "evidence": [t for r in results for t in r.best_text],
-        "evidence_score": np.round(stack("best_score", np.float32).reshape(-1).astype(float), 6),
+        "evidence_score": np.round(stacked("best_score", np.float32).astype(float), 6),
     })
     evidence = [(rid, *row) for rid, r in zip(record_ids, results) for row in r.evidence]
     general = [(rid, r.n_general) for rid, r in zip(record_ids, results)]
