@@ -9,7 +9,8 @@ from urllib.parse import quote
 import pandas as pd
 
 from reporter.render.context import (
-    Cautions, CountRow, EvidenceGoal, EvidenceRow, InputRow, MethodSection, RenderInputs, SensitivityRow,
+    Cautions, CountRow, EvidenceGoal, EvidenceRow, InputRow, MethodSection, RealTextAccuracy, RenderInputs,
+    SensitivityRow,
 )
 from reporter.render.validation_section import build_review_brief, build_validation_brief
 
@@ -166,10 +167,34 @@ def build_method(inputs: RenderInputs, goals: Sequence[tuple[str, str]]) -> Meth
         fdr=float(meta.get("fdr", math.nan)),
         sensitivity=_sensitivity(findings.sensitivity, goals),
         validation=build_validation_brief(findings.extra),
+        real_text=build_real_text_accuracy(inputs, None if varied or single is None else float(single)),
         review=build_review_brief(findings.extra, goals),
         extras=extras,
         methods=tuple((str(k).replace("_", " "), str(v)) for k, v in sorted(dict(meta.get("methods", {})).items())),
     )
+
+
+def build_real_text_accuracy(inputs: RenderInputs, threshold: float | None) -> RealTextAccuracy | None:
+    """The framework's accuracy on real abstracts, marked as not applying when this run scored otherwise."""
+    figures = inputs.framework_info.get("accuracy_on_real_abstracts")
+    if not figures:
+        return None
+    low, high = figures["recall_lowest"], figures["recall_highest"]
+    applies = (str(inputs.model_info.get("backend", "")) == figures["backend"]
+               and threshold is not None and math.isclose(threshold, float(figures["threshold"])))
+    return RealTextAccuracy(
+        n_abstracts=int(figures["n_abstracts"]), measured_on=str(figures["measured_on"]),
+        macro_f1=float(figures["macro_f1"]), top1_primary=float(figures["top1_primary"]),
+        no_goal_unaligned=float(figures["no_goal_unaligned"]),
+        recall_low=(str(low["goal"]), float(low["recall"])), recall_high=(str(high["goal"]), float(high["recall"])),
+        share_english_found=_optional(figures.get("english_goal_papers_aligned")),
+        share_non_english_found=_optional(figures.get("non_english_goal_papers_aligned")),
+        applies=applies,
+    )
+
+
+def _optional(value) -> float | None:
+    return None if value is None else float(value)
 
 
 def build_cautions(inputs: RenderInputs) -> Cautions:
@@ -177,5 +202,6 @@ def build_cautions(inputs: RenderInputs) -> Cautions:
     set_aside = log.loc[log["status"] == "set_aside", "reason"].astype(str).str.lower()
     return Cautions(
         n_non_english=int(inputs.findings.coverage.get("n_non_english", 0)),
+        real_text=build_real_text_accuracy(inputs, None),
         n_set_aside_language=int(set_aside.str.contains("language|english", regex=True).sum()),
     )

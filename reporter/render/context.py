@@ -227,6 +227,20 @@ class SensitivityRow:
 
 
 @dataclass(frozen=True)
+class RealTextAccuracy:
+    n_abstracts: int = _h("Real abstracts in the measured set")
+    measured_on: str = _h("Date of the measurement (ISO 8601)")
+    macro_f1: float = _h("Macro-averaged F1 over the goals at the default threshold")
+    top1_primary: float = _h("Share of goal papers whose highest-scoring goal is the labelled main goal")
+    no_goal_unaligned: float = _h("Share of no-goal papers aligned with no goal")
+    recall_low: tuple[str, float] = _h("(goal, recall) of the goal found least often")
+    recall_high: tuple[str, float] = _h("(goal, recall) of the goal found most often")
+    share_english_found: float | None = _h("Share of English goal papers aligned with a labelled goal")
+    share_non_english_found: float | None = _h("The same for papers in other languages")
+    applies: bool = _h("False when this run's backend or threshold differ from the measured ones")
+
+
+@dataclass(frozen=True)
 class MethodSection:
     inputs: tuple[InputRow, ...] = _h("Per input file: records read, kept, merged, set aside")
     intake_totals: InputRow = _h("The same counts over all files")
@@ -244,6 +258,7 @@ class MethodSection:
     fdr: float = _h("False discovery rate for changes")
     sensitivity: tuple[SensitivityRow, ...] = _h("Goal shares at the threshold -/+ one step")
     validation: ValidationBrief | None = _h("Macro-F1 on the labelled sample and a pointer to its section, or None")
+    real_text: RealTextAccuracy | None = _h("Accuracy measured on real abstracts for this framework, or None")
     review: ReviewBrief | None = _h("Counts of reviewer overrides, per goal, or None without a review file")
     extras: tuple[CountRow, ...] = _h("Other scalar counts analyse put in Findings.extra")
     methods: tuple[tuple[str, str], ...] = _h("(what, method) pairs from analyse, e.g. the interval method")
@@ -252,6 +267,7 @@ class MethodSection:
 @dataclass(frozen=True)
 class Cautions:
     n_non_english: int = _h("Kept publications not in English (scored with an English-reading model)")
+    real_text: RealTextAccuracy | None = _h("Measured accuracy, for the share of non-English goal papers found")
     n_set_aside_language: int = _h("Records set aside for their language")
 
 

@@ -79,7 +79,24 @@ class GoalFramework:
 def builtin_frameworks() -> tuple[str, ...]:
     """Ids of the frameworks shipped in the package."""
     folder = resources.files("reporter.frameworks")
-    return tuple(sorted(p.name[: -len(".toml")] for p in folder.iterdir() if p.name.endswith(".toml")))
+    return tuple(sorted(p.name[: -len(".toml")] for p in folder.iterdir()
+                        if p.name.endswith(".toml") and not p.name.endswith(ACCURACY_SUFFIX)))
+
+
+ACCURACY_SUFFIX = ".accuracy.toml"  # beside a built-in framework: its accuracy measured on real abstracts
+
+
+def measured_accuracy(framework: GoalFramework) -> dict[str, Any] | None:
+    """Accuracy measured on real abstracts for a built-in framework (bench/evaluate_scoring.py
+    --write-accuracy), or None: for other frameworks, and when the figures were measured on
+    another version of the file (checksums differ), since they would not describe this one."""
+    if not framework.source.startswith("builtin:"):
+        return None
+    file = resources.files("reporter.frameworks") / f"{framework.id}{ACCURACY_SUFFIX}"
+    if not file.is_file():
+        return None
+    figures = tomllib.loads(file.read_text(encoding="utf-8"))
+    return figures if figures.get("framework_checksum") == framework.checksum else None
 
 
 def load_framework(spec: str) -> GoalFramework:

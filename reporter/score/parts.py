@@ -9,7 +9,7 @@ from pathlib import Path
 from reporter.config import ScoreConfig
 from reporter.errors import Problem, ReporterError
 from reporter.score.cache import EmbeddingCache
-from reporter.score.framework import GoalFramework, load_framework
+from reporter.score.framework import GoalFramework, load_framework, measured_accuracy
 
 
 @dataclass
@@ -22,7 +22,7 @@ class ScoringParts:
     def framework_info(self) -> dict:
         fw = self.framework
         return {"id": fw.id, "title": fw.title, "version": fw.version, "checksum": fw.checksum, "source": fw.source,
-                "n_goals": len(fw.goals)}
+                "n_goals": len(fw.goals), "accuracy_on_real_abstracts": measured_accuracy(fw)}
 
     def model_info(self) -> dict:
         info = self.embedder.info

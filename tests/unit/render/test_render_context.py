@@ -107,3 +107,37 @@ def test_unassigned_department_is_named_and_listed_last():
     context = build_context(make_inputs(findings=swap(findings, by_department=extra)), make_report(),
                             load_theme("default"))
     assert context.departments.rows[-1].label == "no department recorded"
+
+
+_MEASURED = {"n_abstracts": 375, "measured_on": "2026-12-02", "backend": "embedding", "threshold": 0.5,
+             "macro_f1": 0.781, "top1_primary": 0.897, "no_goal_unaligned": 0.947,
+             "recall_lowest": {"goal": "8", "recall": 0.441}, "recall_highest": {"goal": "4", "recall": 0.947},
+             "english_goal_papers_aligned": 0.939, "non_english_goal_papers_aligned": 0.267}
+
+
+def _with_measured(inputs, **changes):
+    return swap(inputs, framework_info={**inputs.framework_info, "accuracy_on_real_abstracts": {**_MEASURED, **changes}})
+
+
+def _rendered(inputs) -> str:
+    theme = load_theme("default")
+    return render_html(build_context(inputs, make_report(), theme), build_environment(theme), theme)
+
+
+def test_method_cites_accuracy_on_real_abstracts_and_cautions_give_the_language_gap():
+    html = _rendered(_with_measured(make_inputs()))
+    assert "on 375 real research abstracts" in html
+    assert "macro-averaged F1 of 0.78" in html
+    assert "ranged from 0.44 (goal 8) to 0.95 (goal 4)" in html
+    assert "with this framework and this run's backend and threshold" in html
+    assert "26.7% of goal papers in other languages were aligned" in html and "against 93.9% of English ones" in html
+    assert "describe the default settings, not this report" not in html
+
+
+def test_accuracy_measured_under_other_settings_is_marked_as_not_describing_this_report():
+    html = _rendered(_with_measured(make_inputs(), backend="embedding-int8"))
+    assert "describe the default settings, not this report" in html
+
+
+def test_no_measured_accuracy_no_claim():
+    assert "real research abstracts" not in _rendered(make_inputs())
