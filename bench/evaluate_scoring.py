@@ -31,7 +31,7 @@ from sklearn.metrics import f1_score, precision_recall_fscore_support
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-from reporter.score.align import AlignParams, aggregate_by_record, sentence_scores  # noqa: E402
+from reporter.score.align import AlignParams, record_scores, sentence_scores  # noqa: E402
 from reporter.score.cache import EmbeddingCache  # noqa: E402
 from reporter.score.embedder import SentenceEmbedder  # noqa: E402
 from reporter.score.encode import EncodeStats, embed_texts  # noqa: E402
@@ -77,6 +77,7 @@ class Prepared:
         cache.close()
         position = {rid: i for i, rid in enumerate(frame["record_id"])}
         self.unit_record = np.array([position[u.record_id] for u in units])
+        self.unit_is_title = np.array([u.kind == "title" for u in units], dtype=bool)
         patterns = compile_mentions(self.framework)
         matcher = KeywordMatcher.build(self.codes, [g.keywords for g in self.framework.goals])
         self.explicit = np.zeros((len(frame), len(self.codes)), dtype=bool)
@@ -92,7 +93,7 @@ class Prepared:
 
 def scores_for(prep: Prepared, method: ScoringMethod) -> np.ndarray:
     per_sentence, _ = sentence_scores(prep.vectors, prep.space, method.align)
-    semantic = aggregate_by_record(prep.unit_record, per_sentence, len(prep.frame), method.align.top_k)
+    semantic = record_scores(prep.unit_record, prep.unit_is_title, per_sentence, len(prep.frame), method.align)
     lexical = np.vectorize(lambda h: lexical_score(int(h), method.lexical_scale))(prep.hits)
     return semantic + (1 - semantic) * method.lexical_weight * lexical
 

@@ -100,12 +100,26 @@ def year_shares(records, decisions, goal_codes, years, confidence, min_group_siz
 
 
 def department_shares(records, decisions, goal_codes, counting, confidence, min_group_size) -> pd.DataFrame:
-    """Shares by department under full or fractional counting; no department -> "unassigned"."""
+    """Shares by department under full or fractional counting; no department -> "unassigned".
+
+    `n_non_english` counts the department's publications not in English: the model reads English,
+    so they are scored with lower reliability and the department's shares carry that caution.
+    """
     members = group_memberships(records, "departments", counting)
     table = group_shares(members, decisions, goal_codes, ordered_groups(members["group"]), confidence)
     table = table.rename(columns={"group": "department"})
     table.insert(1, "is_unassigned", table["department"] == UNASSIGNED)
+    table.insert(2, "n_non_english", table["department"].map(_non_english_by_group(records, members)).astype(int))
     return mark_too_small(table, min_group_size)
+
+
+def _non_english_by_group(records: pd.DataFrame, members: pd.DataFrame) -> pd.Series:
+    """Distinct publications not in English per group (0 for a group with none)."""
+    if "is_english" not in records.columns:
+        return pd.Series(0, index=members["group"].unique())
+    other = set(records.loc[~records["is_english"].astype(bool), "record_id"].astype(str))
+    counts = members.assign(_other=members["record_id"].isin(other)).groupby("group")["_other"].sum()
+    return counts.reindex(members["group"].unique(), fill_value=0)
 
 
 def country_shares(records, decisions, goal_codes, counting, confidence, min_group_size) -> pd.DataFrame:

@@ -18,7 +18,7 @@ import pandas as pd
 
 from reporter.config import ScoreConfig
 from reporter.records import SCORE_COLUMNS, require_columns
-from reporter.score.align import AlignParams, GoalSpace, aggregate_by_record, sentence_scores
+from reporter.score.align import AlignParams, GoalSpace, record_scores, sentence_scores
 from reporter.score.cache import EmbeddingCache, text_hash
 from reporter.score.encode import EncodeStats, embed_texts
 from reporter.score.evidence import pick_evidence
@@ -274,7 +274,8 @@ def _compute_results(fields, record_ids, cfg, codes, scorer, patterns, keywords,
     units = fit_to_model(units, embedder.info.max_tokens, embedder.count_tokens)
     per_sentence = scorer([u.text for u in units]) if units else np.zeros((0, n_goals), np.float32)
     unit_record = np.array([u.record_id for u in units], dtype=np.int64)
-    semantic = aggregate_by_record(unit_record, per_sentence, n, method.align.top_k)
+    is_title = np.array([u.kind == "title" for u in units], dtype=bool)
+    semantic = record_scores(unit_record, is_title, per_sentence, n, method.align)
     # Noisy-or: the keyword signal can lift a score but never lower it.
     combined = semantic + (1.0 - semantic) * method.lexical_weight * lexical
     explicit = explicit_counts > 0

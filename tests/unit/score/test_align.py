@@ -3,7 +3,9 @@
 import numpy as np
 import pytest
 
-from reporter.score.align import AlignParams, GoalSpace, aggregate_by_record, goal_similarity, sentence_scores
+from reporter.score.align import (
+    AlignParams, GoalSpace, aggregate_by_record, goal_similarity, record_scores, sentence_scores,
+)
 
 
 def _unit(*rows):
@@ -45,3 +47,24 @@ def test_aggregate_takes_mean_of_top_k_per_record():
     assert out[0] == pytest.approx([0.7, 0.3])
     assert out[1] == pytest.approx([0.3, 0.3])
     assert out[2] == pytest.approx([0.0, 0.0]), "a record without sentences scores 0"
+
+
+def test_a_strong_title_stands_for_the_publication_discounted():
+    # Record 0: the title scores 0.9 for goal a, the abstract's sentences little; the top-2 mean
+    # would be 0.5, the discounted title gives 0.9 * 0.85. Record 1 has a weak title: the mean stands.
+    record_index = np.array([0, 0, 0, 1, 1, 1])
+    is_title = np.array([True, False, False, True, False, False])
+    scores = np.array([[0.9, 0.0], [0.1, 0.2], [0.05, 0.1], [0.1, 0.0], [0.8, 0.0], [0.6, 0.0]], dtype=np.float32)
+    out = record_scores(record_index, is_title, scores, 2, AlignParams(top_k=2, title_weight=0.85))
+    assert out[0] == pytest.approx([0.9 * 0.85, 0.15])
+    assert out[1] == pytest.approx([0.7, 0.0])
+    off = record_scores(record_index, is_title, scores, 2, AlignParams(top_k=2, title_weight=0.0))
+    assert off == pytest.approx(aggregate_by_record(record_index, scores, 2, 2)), "0 turns the title rule off"
+
+
+def test_a_title_split_into_windows_counts_by_its_best_window():
+    record_index = np.array([0, 0, 0])
+    is_title = np.array([True, True, False])
+    scores = np.array([[0.2], [0.8], [0.1]], dtype=np.float32)
+    out = record_scores(record_index, is_title, scores, 1, AlignParams(top_k=3, title_weight=1.0))
+    assert out[0] == pytest.approx([0.8])
