@@ -150,6 +150,9 @@ class DepartmentSection:
     chart: Chart | None = _h("Department x goal heat map, too-small cells marked; None without departments")
     n_too_small: int = _h("Departments under min_group_size")
     min_group_size: int = _h("Groups with fewer publications are marked too small")
+    non_english: tuple[CountRow, ...] = _h(
+        "Departments with publications not in English (scored with lower reliability): label, n, share of the department"
+    )
 
 
 @dataclass(frozen=True)

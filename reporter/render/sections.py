@@ -19,7 +19,7 @@ from reporter.render import validation_section
 from reporter.render.appendix import POLICY_TEXT, build_cautions, build_evidence, build_method
 from reporter.render.branding import build_branding, build_theme_view
 from reporter.render.context import (
-    Cell, ChangeRow, ChangeSection, DepartmentSection, GoalProfile, GoalRow, GroupRow, PairRow,
+    Cell, ChangeRow, CountRow, ChangeSection, DepartmentSection, GoalProfile, GoalRow, GroupRow, PairRow,
     PartnerSection, RenderInputs, ReportContext, SectionLink, Summary, TogetherSection,
 )
 from reporter.render.themes import Theme
@@ -190,7 +190,16 @@ def _departments(frame: pd.DataFrame, goals, theme: Theme, min_size: int) -> Dep
         chart = charts.draw_group_heatmap(rows, goals, theme, what="departments", name="departments",
                                            min_group_size=min_size)
     return DepartmentSection(rows=rows, chart=chart, n_too_small=sum(r.is_too_small for r in rows),
-                             min_group_size=min_size)
+                             min_group_size=min_size, non_english=_non_english_rows(frame.assign(label=labels), rows))
+
+
+def _non_english_rows(frame: pd.DataFrame, rows) -> tuple[CountRow, ...]:
+    """Per department with any, its publications not in English, in the table's order."""
+    if "n_non_english" not in frame.columns:
+        return ()
+    counts = frame.groupby("department", sort=False)["n_non_english"].first()
+    return tuple(CountRow(row.label, int(counts[row.code]), int(counts[row.code]) / row.n if row.n else None)
+                 for row in rows if row.code in counts.index and counts[row.code] > 0)
 
 
 def _partners(countries: pd.DataFrame, collaboration: pd.DataFrame, goals, theme: Theme,

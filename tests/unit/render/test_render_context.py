@@ -141,3 +141,21 @@ def test_accuracy_measured_under_other_settings_is_marked_as_not_describing_this
 
 def test_no_measured_accuracy_no_claim():
     assert "real research abstracts" not in _rendered(make_inputs())
+
+
+def test_departments_with_non_english_publications_are_named_with_their_count():
+    inputs = make_inputs()
+    table = inputs.findings.by_department
+    first = sorted(d for d in table["department"].unique() if str(d).replace(" ", "").isalpha())[0]
+    marked = table.assign(n_non_english=(table["department"] == first).astype(int) * 2)
+    inputs = swap(inputs, findings=swap(inputs.findings, by_department=marked))
+    context = build_context(inputs, make_report(), load_theme("default"))
+    row = next(r for r in context.departments.rows if r.code == first)
+    assert [(r.label, r.n) for r in context.departments.non_english] == [(row.label, 2)]
+    assert context.departments.non_english[0].share == 2 / row.n
+    html = _rendered(inputs)
+    assert "Scored with lower reliability" in html and f"{row.label} 2 (" in html
+
+
+def test_no_non_english_publications_no_lower_reliability_note():
+    assert "Scored with lower reliability" not in _rendered(make_inputs())
