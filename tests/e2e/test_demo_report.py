@@ -156,3 +156,22 @@ def test_validation_section_uses_the_demo_labelled_sample(findings):
     validation = findings["extra"]["validation"]
     assert validation["n_matched"] == 80 and validation["n_unmatched"] == 0
     assert 0 < validation["averages"]["macro"]["f1"] <= 1
+
+
+def test_method_cites_accuracy_on_real_abstracts_and_departments_name_non_english_work(pdf_pages, findings):
+    """The figures come from the shipped accuracy file (measured on real abstracts), not from this run."""
+    from reporter.score.framework import load_framework, measured_accuracy
+
+    measured = measured_accuracy(load_framework("un-sdg-2030"))
+    full = _plain(" ".join(pdf_pages))
+    assert f"on {measured['n_abstracts']} real research abstracts" in full
+    assert f"macro-averaged F1 of {measured['macro_f1']:.2f}" in full
+    assert "with this framework and this run's backend and threshold" in full
+    low = measured["recall_lowest"]
+    assert f"ranged from {low['recall']:.2f} (goal {low['goal']})" in full
+    # The demo has French, Spanish and German publications: their departments are named.
+    departments = [row for row in findings["tables"]["by_department"] if row["goal"] == "1" and row["n_non_english"] > 0]
+    assert departments, "the demo's non-English publications belong to departments"
+    assert "Scored with lower reliability" in full
+    for row in departments:
+        assert f"{row['department']} {row['n_non_english']} (" in full
