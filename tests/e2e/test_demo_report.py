@@ -4,6 +4,7 @@ import csv
 import json
 import re
 from html.parser import HTMLParser
+from pathlib import Path
 
 import pytest
 from pypdf import PdfReader
@@ -175,3 +176,17 @@ def test_method_cites_accuracy_on_real_abstracts_and_departments_name_non_englis
     assert "Scored with lower reliability" in full
     for row in departments:
         assert f"{row['department']} {row['n_non_english']} (" in full
+
+
+def test_changes_that_hold_are_the_ones_the_demo_plans(findings):
+    """The generator plans three shifts (bench/demo_corpus/plan.py year_multiplier, stated in
+    known_numbers.json "intended_shifts"): goals 7 and 13 rise in 2025, goal 3 falls from 2022.
+    Every change that holds must be one of them, in its direction; goal 7's rise must hold."""
+    known = json.loads((Path(__file__).resolve().parents[2] / "bench" / "demo_corpus" / "known_numbers.json")
+                       .read_text(encoding="utf-8"))
+    assert "Goals 7 and 13 rise in 2025" in known["intended_shifts"]
+    planned = {"7": "increase", "13": "increase", "3": "decrease"}
+    held = [(row["goal"], row["baseline"], row["verdict"]) for row in findings["tables"]["changes"] if row["is_change"]]
+    unplanned = [h for h in held if planned.get(h[0]) != h[2]]
+    assert not unplanned, f"changes the demo does not plan held up: {unplanned}"
+    assert any(goal == "7" and verdict == "increase" for goal, _, verdict in held), "the planned rise of goal 7"
