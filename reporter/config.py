@@ -17,6 +17,7 @@ from typing import Annotated, Any, Literal
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
 
 from reporter.errors import ConfigError, Problem
+from reporter.output_folder import output_folder_problems
 
 CONFIG_FILE_NAME = "waymark.toml"
 BUILTIN_FRAMEWORK = "un-sdg-2030"
@@ -39,7 +40,7 @@ class ReportConfig(_Section):
         description="ISO 3166-1 alpha-2 code of the institution's country; other countries count as partners."
     )
     reporting_year: int = Field(ge=1900, le=2100, description="The year the report is about.")
-    comparison_years: tuple[int, ...] = Field(
+    comparison_years: tuple[Annotated[int, Field(ge=1900, le=2100)], ...] = Field(
         default=(), description="Earlier years to compare the reporting year with."
     )
     title: str = Field(
@@ -53,6 +54,14 @@ class ReportConfig(_Section):
     accent_colour: str = Field(
         default="#1f5f8b", description="Accent colour for headings and rules, as #rrggbb."
     )
+
+    @field_validator("institution", "title")
+    @classmethod
+    def _not_blank(cls, value: str) -> str:
+        # An empty name prints as nothing on the cover and in every heading ("Small test ·  · 2025").
+        if not value.strip():
+            raise ValueError("expected a name to print on the cover, got an empty text")
+        return value.strip()
 
     @field_validator("home_country")
     @classmethod
@@ -332,13 +341,17 @@ def _resolve_paths(
         # Existence was checked on the raw values (`_missing_files`); here paths only resolve.
         if value is None:
             return None
+        value = value.expanduser()  # "~/reports" means the home folder, as in a shell
         return Path(os.path.normpath(value if value.is_absolute() else base / value))
 
     inputs = tuple(
         item.model_copy(update={"path": resolve(item.path, f"inputs[{i}].path", True)})
         for i, item in enumerate(config.inputs)
     )
-    out_dir = output.resolve() if output is not None else resolve(config.report.output, "report.output", False)
+    # --out is relative to the working folder, report.output to the config's; links are not followed
+    # here (a link loop is reported by the output-folder check, not raised).
+    out_dir = (Path(os.path.normpath(os.path.abspath(output.expanduser()))) if output is not None
+               else resolve(config.report.output, "report.output", False))
     theme = config.report.theme
     if "/" in theme or "\\" in theme or theme.startswith("."):
         # A theme folder of the user's own resolves against the config folder like every other path.
@@ -369,6 +382,14 @@ def _resolve_paths(
             "review_file": resolve(config.validation.review_file, "validation.review_file", True),
         }
     )
+    read_files = [(f"inputs[{i}].path", item.path) for i, item in enumerate(inputs)]
+    read_files += [("departments.staff_map", departments.staff_map), ("score.thresholds_file", score.thresholds_file),
+                   ("score.cache", score.cache), ("validation.labelled_sample", validation.labelled_sample),
+                   ("validation.review_file", validation.review_file), ("report.logo", report.logo)]
+    problems.extend(output_folder_problems(
+        out_dir, "--out" if output is not None else "report.output", read_files,
+        lambda key, message: Problem(path, _line_of(lines, key), key, message),
+    ))
     for year in config.report.comparison_years:
         if year >= config.report.reporting_year:
             problems.append(

@@ -99,3 +99,63 @@ def _fields(model: type[BaseModel], prefix: str = ""):
 def test_every_config_key_is_documented():
     undocumented = [key for key, info in _fields(Config) if not (info.description or "").strip()]
     assert undocumented == [], "every config key needs a description (it is the documentation)"
+
+
+# --- where a build writes (issue 15): checked when the config loads, before any input is read ---
+
+
+def test_output_folder_holding_the_inputs_is_refused_naming_each_key(tmp_path):
+    (tmp_path / "data").mkdir()
+    (tmp_path / "data" / "scores.csv").write_text("title\nx\n")
+    path = _write(tmp_path, GOOD.replace("comparison_years = [2023, 2024]\n", 'comparison_years = [2023, 2024]\noutput = "."\n')
+                  + '\n[[inputs]]\npath = "data/scores.csv"\n')
+    inside = "lies inside the output folder {out} (report.output), which the build fills with its own files; " \
+             "move the file or choose another output folder"
+    assert _problems(path) == [
+        f"{path}: score.cache: {tmp_path / '.waymark-cache' / 'embeddings.sqlite'} " + inside.format(out=tmp_path),
+        f"{path}:9: inputs[0].path: {tmp_path / 'a.bib'} " + inside.format(out=tmp_path),
+        f"{path}:12: inputs[1].path: {tmp_path / 'data' / 'scores.csv'} " + inside.format(out=tmp_path),
+    ]
+
+
+def test_review_file_inside_the_output_folder_is_refused(tmp_path):
+    (tmp_path / "out").mkdir()
+    (tmp_path / "out" / "review.csv").write_text("record_id,goal,decision\n")
+    path = _write(tmp_path, GOOD.replace("comparison_years = [2023, 2024]\n", 'comparison_years = [2023, 2024]\noutput = "out"\n')
+                  + '\n[validation]\nreview_file = "out/review.csv"\n')
+    [problem] = _problems(path)
+    assert problem.startswith(f"{path}:12: validation.review_file: {tmp_path / 'out' / 'review.csv'} lies inside the output folder")
+
+
+def test_output_naming_an_existing_file_is_refused_for_the_config_and_for_out(tmp_path):
+    (tmp_path / "report.pdf").write_text("")
+    path = _write(tmp_path, GOOD.replace("comparison_years = [2023, 2024]\n", 'comparison_years = [2023, 2024]\noutput = "report.pdf"\n'))
+    assert _problems(path) == [
+        f"{path}:6: report.output: {tmp_path / 'report.pdf'} is a file; expected a folder for the report and its exports"]
+    with pytest.raises(ConfigError) as caught:
+        load_config(_write(tmp_path, GOOD), output=tmp_path / "report.pdf")
+    assert str(caught.value) == (
+        f"{tmp_path / 'waymark.toml'}: --out: {tmp_path / 'report.pdf'} is a file; expected a folder for the report and its exports")
+
+
+def test_output_under_a_link_loop_is_a_message_not_a_traceback(tmp_path):
+    (tmp_path / "loop").symlink_to(tmp_path / "loop")
+    with pytest.raises(ConfigError) as caught:
+        load_config(_write(tmp_path, GOOD), output=tmp_path / "loop" / "x")
+    assert str(caught.value).endswith(f"--out: cannot create {tmp_path / 'loop' / 'x'}: {tmp_path / 'loop'} "
+                                      "is a link that leads nowhere (broken, or a loop)")
+
+
+def test_tilde_means_the_home_folder(tmp_path, monkeypatch):
+    monkeypatch.setenv("HOME", str(tmp_path / "home"))
+    path = _write(tmp_path, GOOD.replace("comparison_years = [2023, 2024]\n", 'comparison_years = [2023, 2024]\noutput = "~/reports"\n'))
+    assert load_config(path).report.output == tmp_path / "home" / "reports"
+    assert load_config(path, output=Path("~/elsewhere")).report.output == tmp_path / "home" / "elsewhere"
+
+
+def test_blank_institution_and_impossible_comparison_years_are_refused(tmp_path):
+    path = _write(tmp_path, GOOD.replace('"Test University"', '"  "').replace("[2023, 2024]", "[-5, 2024]"))
+    assert _problems(path) == [
+        f"{path}:2: report.institution: expected a name to print on the cover, got an empty text",
+        f"{path}:5: report.comparison_years[0]: input should be greater than or equal to 1900, got -5",
+    ]
