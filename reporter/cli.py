@@ -61,21 +61,25 @@ def main() -> None:
 @click.option("-v", "--verbose", count=True, help="More detail on stderr.")
 @click.option("-q", "--quiet", is_flag=True, help="No progress bars; warnings only.")
 def intake(config_path: Path, out_dir: Path | None, verbose: int, quiet: bool) -> None:
-    """Check the config and inputs, print the intake summary, write intake-log.csv (no model)."""
+    """Check the config and inputs, print the intake summary, write intake-log.csv beside the config or into --out (no model)."""
     from reporter.config import load_config
-    from reporter.pipeline import run_intake, write_intake
+    from reporter.pipeline import check_years, run_intake, write_intake
     from reporter.summary import format_intake_summary
 
     _setup_logging(verbose, quiet)
     try:
         config = load_config(config_path, output=out_dir)
         result = run_intake(config)
-        written = write_intake(config, result)
+        written = write_intake(config, result, config.output_dir if out_dir is not None else None)
     except ReporterError as error:
         _fail(error)
     click.echo(format_intake_summary(result))
     for label, path in written.items():
         click.echo(f"{label}: {path}")
+    try:
+        check_years(config, result)  # what `build` would refuse, said here too
+    except ReporterError as error:
+        _fail(error)
 
 
 @main.command()

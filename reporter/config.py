@@ -46,6 +46,13 @@ class ReportConfig(_Section):
     title: str = Field(
         default="Research and the Sustainable Development Goals", description="Report title on the cover."
     )
+    allow_empty_years: bool = Field(
+        default=False,
+        description=(
+            "Build even when the reporting year or a comparison year has no publication (by default that is "
+            "an error: a comparison with an empty year would read as a finding)."
+        ),
+    )
     output: Path = Field(default=Path("output"), description="Folder the report and exports are written to.")
     theme: str = Field(
         default="default", description="Theme name under themes/, or a path to a theme folder of your own."
@@ -79,6 +86,14 @@ class ReportConfig(_Section):
         if not re.fullmatch(r"#[0-9a-fA-F]{6}", value):
             raise ValueError(f"expected a colour as #rrggbb, got {value!r}")
         return value.lower()
+
+    @field_validator("output", mode="before")
+    @classmethod
+    def _named_folder(cls, value: Any) -> Any:
+        # Path("") is the current folder: an empty value would quietly mean the config's own folder.
+        if isinstance(value, str) and not value.strip():
+            raise ValueError('expected a folder for the report, got an empty text (use "." for the config\'s folder)')
+        return value
 
     @field_validator("logo", mode="before")
     @classmethod
@@ -409,6 +424,30 @@ def _resolve_paths(
             "validation": validation,
         }
     )
+
+
+def empty_year_problems(config: Config, years_present: set[int], n_kept: int) -> list[Problem]:
+    """One problem per year in scope without a kept publication, unless report.allow_empty_years."""
+    report = config.report
+    if report.allow_empty_years:
+        return []
+    path = config.config_path
+    try:
+        lines = _key_lines(path.read_text(encoding="utf-8"))
+    except (OSError, UnicodeDecodeError):
+        lines = {}
+    found = ", ".join(str(y) for y in sorted(years_present)) or "none"
+    fix = "remove it, add the export that holds it, or set report.allow_empty_years = true"
+    problems = []
+    for key, years in (("report.reporting_year", (report.reporting_year,)),
+                       ("report.comparison_years", report.comparison_years)):
+        for year in years:
+            if year not in years_present:
+                problems.append(Problem(path, _line_of(lines, key), key, (
+                    f"no publication from {year} among the {n_kept} kept (years in scope with publications: "
+                    f"{found}); {fix}"
+                )))
+    return problems
 
 
 def _problem_from_error(path: Path, lines: dict[str, int], err: dict[str, Any]) -> Problem:

@@ -9,8 +9,9 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from reporter.config import Config
+from reporter.config import Config, empty_year_problems
 from reporter.enrich import enrich
+from reporter.errors import ReporterError
 from reporter.ingest import read_inputs
 from reporter.records import IntakeResult
 
@@ -30,12 +31,31 @@ class RunResult:
     findings: object = None  # analyse.Findings
 
 
-def write_intake(config: Config, intake: IntakeResult) -> dict[str, Path]:
-    """Write only the intake log (the `intake` command)."""
+def check_years(config: Config, intake: IntakeResult) -> None:
+    """Raise when the reporting year or a comparison year has no kept publication (see report.allow_empty_years)."""
+    years = set(intake.records["year"].dropna().astype(int)) if len(intake.records) else set()
+    problems = empty_year_problems(config, years & set(config.report.years), len(intake.records))
+    if problems:
+        raise ReporterError(problems)
+
+
+def write_intake(config: Config, intake: IntakeResult, folder: Path | None = None) -> dict[str, Path]:
+    """Write only the intake log (the `intake` command): into `folder` (--out), else beside the config.
+
+    Never into the configured output folder: a built report there lists its own intake log in its
+    manifest, and a check of other inputs must not replace it. A `folder` holding a built report
+    (its manifest.json) is refused for the same reason.
+    """
+    from reporter.errors import Problem
     from reporter.render.exports import write_intake_log
 
-    path = write_intake_log(intake.log, config.output_dir)
-    return {"intake log": path}
+    target = folder if folder is not None else config.base_dir
+    if (target / "manifest.json").exists():
+        raise ReporterError(Problem(config.config_path, None, "--out", (
+            f"{target} holds a built report (manifest.json); the intake check does not write into it: "
+            "choose another --out, or leave --out out to write the log beside the config"
+        )))
+    return {"intake log": write_intake_log(intake.log, target)}
 
 
 def run(config: Config, show_progress: bool = True, keep_sentences: bool = False,
@@ -49,6 +69,8 @@ def run(config: Config, show_progress: bool = True, keep_sentences: bool = False
 
     started = dt.datetime.now(dt.timezone.utc).replace(microsecond=0)
     intake = run_intake(config)
+    # Before the model loads: a year with nothing in it would compare as "no change" or a fall to 0%.
+    check_years(config, intake)
     # Scores are computed for every kept record of every year in one run, with one model,
     # framework and threshold: that is what makes year-on-year changes like-for-like.
     parts = load_scoring_parts(config.score)

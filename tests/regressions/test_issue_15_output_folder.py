@@ -65,3 +65,75 @@ def test_out_naming_an_existing_file_is_a_message(tmp_path, command):
     assert result.exit_code == 1
     assert f"--out: {tmp_path / 'report.pdf'} is a file; expected a folder for the report and its exports" in result.output
     assert (tmp_path / "report.pdf").read_bytes() == b"%PDF-1.7 the user's own"
+
+
+# --- years with nothing in them -------------------------------------------------------------
+
+YEARS_CONFIG = """\
+[report]
+institution = "Small Test University"
+home_country = "IE"
+reporting_year = {reporting}
+comparison_years = [{comparison}]
+output = "out"
+{extra}
+[[inputs]]
+path = "pubs.csv"
+"""
+
+
+def _years_project(tmp_path: Path, reporting: int, comparison: str, extra: str = "") -> Path:
+    rows = "".join(f"A study number {i},Abstract {i} about wells.,{year}\n"
+                   for i, year in enumerate([2024, 2024, 2025, 2025]))
+    (tmp_path / "pubs.csv").write_text("title,abstract,year\n" + rows, encoding="utf-8")
+    config = tmp_path / "waymark.toml"
+    config.write_text(YEARS_CONFIG.format(reporting=reporting, comparison=comparison, extra=extra), encoding="utf-8")
+    return config
+
+
+@pytest.mark.parametrize("command", ["intake", "build"])
+def test_a_comparison_year_without_publications_is_an_error(tmp_path, command):
+    config = _years_project(tmp_path, 2025, "2019, 2024")
+    result = CliRunner().invoke(main, [command, str(config), "-q"])
+    assert result.exit_code == 1
+    assert (f"{config}:5: report.comparison_years: no publication from 2019 among the 4 kept (years in scope with "
+            "publications: 2024, 2025); remove it, add the export that holds it, or set "
+            "report.allow_empty_years = true") in result.output
+    assert not (tmp_path / "out" / "report.html").exists(), "nothing is reported about an empty year"
+
+
+def test_a_reporting_year_without_publications_is_an_error(tmp_path):
+    config = _years_project(tmp_path, 2026, "2025")
+    result = CliRunner().invoke(main, ["intake", str(config), "-q"])
+    assert result.exit_code == 1
+    assert f"{config}:4: report.reporting_year: no publication from 2026 among the 2 kept" in result.output
+
+
+def test_empty_years_can_be_allowed_on_purpose(tmp_path):
+    config = _years_project(tmp_path, 2025, "2019, 2024", extra="allow_empty_years = true\n")
+    result = CliRunner().invoke(main, ["intake", str(config), "-q"])
+    assert result.exit_code == 0, result.output
+
+
+# --- the intake check never writes into a built report ---------------------------------------
+
+
+def test_intake_writes_its_log_beside_the_config_not_into_the_report_folder(tmp_path):
+    config = _years_project(tmp_path, 2025, "2024")
+    (tmp_path / "out").mkdir()
+    (tmp_path / "out" / "intake-log.csv").write_text("the built report's own log\n", encoding="utf-8")
+    result = CliRunner().invoke(main, ["intake", str(config), "-q"])
+    assert result.exit_code == 0, result.output
+    assert f"intake log: {tmp_path / 'intake-log.csv'}" in result.output
+    assert (tmp_path / "out" / "intake-log.csv").read_text(encoding="utf-8") == "the built report's own log\n"
+
+
+def test_intake_refuses_an_out_folder_that_holds_a_built_report(tmp_path):
+    config = _years_project(tmp_path, 2025, "2024")
+    report = tmp_path / "built"
+    report.mkdir()
+    (report / "manifest.json").write_text("{}", encoding="utf-8")
+    result = CliRunner().invoke(main, ["intake", str(config), "--out", str(report), "-q"])
+    assert result.exit_code == 1
+    assert f"--out: {report} holds a built report (manifest.json); the intake check does not write into it" in result.output
+    assert not (report / "intake-log.csv").exists()

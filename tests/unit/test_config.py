@@ -159,3 +159,9 @@ def test_blank_institution_and_impossible_comparison_years_are_refused(tmp_path)
         f"{path}:2: report.institution: expected a name to print on the cover, got an empty text",
         f"{path}:5: report.comparison_years[0]: input should be greater than or equal to 1900, got -5",
     ]
+
+
+def test_empty_output_is_refused_rather_than_meaning_the_config_folder(tmp_path):
+    path = _write(tmp_path, GOOD.replace("comparison_years = [2023, 2024]\n", 'comparison_years = [2023, 2024]\noutput = ""\n'))
+    assert _problems(path) == [
+        f"{path}:6: report.output: expected a folder for the report, got an empty text (use \".\" for the config's folder)"]
