@@ -122,6 +122,8 @@ def build(config_path: Path, out_dir: Path | None, sentences: bool, review_works
     click.echo(f"Written to {config.output_dir}:")
     for label, path in result.written.items():
         click.echo(f"  {label}: {path}")
+    for path in result.removed:
+        click.echo(f"  removed (from an earlier build, not made this time): {path}")
 
 
 @main.command("check-labels")

@@ -397,6 +397,7 @@ def _resolve_paths(
             "review_file": resolve(config.validation.review_file, "validation.review_file", True),
         }
     )
+    problems.extend(_options_for_other_formats(config, path, lines))
     read_files = [(f"inputs[{i}].path", item.path) for i, item in enumerate(inputs)]
     read_files += [("departments.staff_map", departments.staff_map), ("score.thresholds_file", score.thresholds_file),
                    ("score.cache", score.cache), ("validation.labelled_sample", validation.labelled_sample),
@@ -424,6 +425,29 @@ def _resolve_paths(
             "validation": validation,
         }
     )
+
+
+#: Input options that only a CSV reader uses, with the value that means "not set".
+_CSV_ONLY = {"columns": {}, "delimiter": None, "list_separator": ";"}
+
+
+def _options_for_other_formats(config: Config, path: Path, lines: dict[str, int]) -> list[Problem]:
+    """CSV-only options on an input that is BibTeX or RIS (by `format` or extension) would be ignored: refuse them."""
+    from reporter.ingest.formats import EXTENSIONS  # here, not at the top: ingest imports this module
+
+    problems = []
+    for i, item in enumerate(config.inputs):
+        fmt = item.format or EXTENSIONS.get(item.path.suffix.lower())
+        if fmt is None or fmt == "csv":
+            continue
+        for option, unset in _CSV_ONLY.items():
+            if getattr(item, option) != unset:
+                key = f"inputs[{i}].{option}"
+                problems.append(Problem(path, _line_of(lines, key), key, (
+                    f"applies to CSV files only, but {item.path.name} is read as {fmt}; remove it, "
+                    f"or set format = \"csv\" if the file is a CSV export"
+                )))
+    return problems
 
 
 def empty_year_problems(config: Config, years_present: set[int], n_kept: int) -> list[Problem]:

@@ -29,6 +29,7 @@ class RunResult:
     written: dict[str, Path] = field(default_factory=dict)  # label -> file written
     scores: object = None  # score.Scores
     findings: object = None  # analyse.Findings
+    removed: tuple[Path, ...] = ()  # files of an earlier build in the output folder that this one did not write
 
 
 def check_years(config: Config, intake: IntakeResult) -> None:
@@ -117,15 +118,22 @@ def run(config: Config, show_progress: bool = True, keep_sentences: bool = False
         goals=goals, framework_info=framework_info, model_info=model_info,
         score_settings=score_settings, manifest=manifest, generated_at=started.isoformat(),
     )
-    written = render(inputs, config.report, config.output_dir)
+    from reporter.render.manifest import previous_outputs, remove_stale_outputs
+
+    # The optional extras go in first, so the manifest lists them; what an earlier build listed and
+    # this one did not write is removed at the end, so the folder matches its manifest.
+    previous = previous_outputs(config.output_dir)
+    extras: dict[str, Path] = {}
     if review_worksheet:
-        written = {**written, **_write_review_worksheet(config, intake, scores)}
+        extras.update(_write_review_worksheet(config, intake, scores))
     if keep_sentences and scores.sentences is not None:
         from reporter.render.exports import write_csv
 
         path = config.output_dir / "data" / "sentences.csv"
-        written = {**written, "data/sentences.csv": write_csv(scores.sentences, path, root=config.output_dir)}
-    return RunResult(intake=intake, written=written, scores=scores, findings=findings)
+        extras["data/sentences.csv"] = write_csv(scores.sentences, path, root=config.output_dir)
+    written = {**render(inputs, config.report, config.output_dir, extra_outputs=extras), **extras}
+    removed = remove_stale_outputs(config.output_dir, previous, written)
+    return RunResult(intake=intake, written=written, scores=scores, findings=findings, removed=tuple(removed))
 
 
 def _apply_review(config: Config, intake: IntakeResult, scores):

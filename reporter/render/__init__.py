@@ -19,10 +19,11 @@ from reporter.render.themes import ThemeError, build_environment, load_theme
 __all__ = ["RenderInputs", "ReportContext", "ThemeError", "render"]
 
 
-def render(inputs: RenderInputs, report, output_dir: Path) -> dict[str, Path]:
+def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[str, Path] | None = None) -> dict[str, Path]:
     """Write report.html, report.pdf and data/* into `output_dir`; return label -> path written.
 
     `report` is the `ReportConfig` (institution, title, reporting_year, theme, logo, accent_colour).
+    `extra_outputs` are files the caller already wrote into the folder; the manifest lists them too.
     """
     from reporter.render.html import render_html
     from reporter.render.pdf import render_pdf
@@ -45,7 +46,7 @@ def render(inputs: RenderInputs, report, output_dir: Path) -> dict[str, Path]:
         written[f"data/{name}"] = write_text_atomic(data_dir / name, text, root=output_dir)
     # The intake log and the manifest sit beside the report, where a reader looks first.
     written["intake-log.csv"] = write_intake_log(inputs.intake_log, output_dir)
-    written["manifest.json"] = write_manifest(inputs.manifest, dict(written), output_dir,
+    written["manifest.json"] = write_manifest(inputs.manifest, {**written, **(extra_outputs or {})}, output_dir,
                                               output_dir / "manifest.json")
     written["report.html"] = write_text_atomic(output_dir / "report.html", html, root=output_dir)
     written["report.pdf"] = write_bytes_atomic(output_dir / "report.pdf", pdf, root=output_dir)

@@ -4,6 +4,7 @@ Each case as a user hits it, through the command line; the config fails before a
 or the model loads, so these run without the model.
 """
 
+import json
 from pathlib import Path
 
 import pytest
@@ -137,3 +138,26 @@ def test_intake_refuses_an_out_folder_that_holds_a_built_report(tmp_path):
     assert result.exit_code == 1
     assert f"--out: {report} holds a built report (manifest.json); the intake check does not write into it" in result.output
     assert not (report / "intake-log.csv").exists()
+
+
+# --- the output folder holds only this build's files -----------------------------------------
+
+
+@pytest.mark.model
+def test_a_build_without_the_extras_removes_the_earlier_builds_extras(tmp_path):
+    from tests.e2e.small_project import make_small_project
+
+    project = make_small_project(tmp_path / "p", n_records=6)
+    config = str(project / "waymark.toml")
+    first = CliRunner().invoke(main, ["build", config, "--sentences", "--review-worksheet", "-q"])
+    assert first.exit_code == 0, first.output
+    out = project / "out"
+    manifest = json.loads((out / "manifest.json").read_text(encoding="utf-8"))
+    listed = {entry["path"] for entry in manifest["outputs"].values()}
+    assert {"data/sentences.csv", "review-worksheet.csv"} <= listed, "the manifest lists the extras"
+    (out / "my-notes.txt").write_text("the user's own", encoding="utf-8")
+    second = CliRunner().invoke(main, ["build", config, "-q"])
+    assert second.exit_code == 0, second.output
+    assert not (out / "data" / "sentences.csv").exists() and not (out / "review-worksheet.csv").exists()
+    assert "removed (from an earlier build, not made this time)" in second.output
+    assert (out / "my-notes.txt").exists() and (out / "report.pdf").exists()

@@ -165,3 +165,16 @@ def test_empty_output_is_refused_rather_than_meaning_the_config_folder(tmp_path)
     path = _write(tmp_path, GOOD.replace("comparison_years = [2023, 2024]\n", 'comparison_years = [2023, 2024]\noutput = ""\n'))
     assert _problems(path) == [
         f"{path}:6: report.output: expected a folder for the report, got an empty text (use \".\" for the config's folder)"]
+
+
+def test_csv_only_options_on_a_bibtex_or_ris_input_are_refused(tmp_path):
+    (tmp_path / "b.ris").write_text("")
+    text = GOOD.replace('path = "a.bib"\n', 'path = "a.bib"\ncolumns = { title = "Output Title" }\n') + \
+        '\n[[inputs]]\npath = "b.ris"\ndelimiter = ";"\n\n[[inputs]]\npath = "a.bib"\nformat = "csv"\ndelimiter = ";"\n'
+    path = _write(tmp_path, text)
+    assert _problems(path) == [
+        f"{path}:9: inputs[0].columns: applies to CSV files only, but a.bib is read as bibtex; remove it, "
+        'or set format = "csv" if the file is a CSV export',
+        f"{path}:13: inputs[1].delimiter: applies to CSV files only, but b.ris is read as ris; remove it, "
+        'or set format = "csv" if the file is a CSV export',
+    ]
