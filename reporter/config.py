@@ -17,7 +17,7 @@ from typing import Annotated, Any, Literal
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
 
 from reporter.errors import ConfigError, Problem
-from reporter.output_folder import output_folder_problems
+from reporter.config_files import cache_problems, format_option_problems, output_folder_problems
 
 CONFIG_FILE_NAME = "waymark.toml"
 BUILTIN_FRAMEWORK = "un-sdg-2030"
@@ -397,15 +397,20 @@ def _resolve_paths(
             "review_file": resolve(config.validation.review_file, "validation.review_file", True),
         }
     )
-    problems.extend(_options_for_other_formats(config, path, lines))
+    def problem(key: str, message: str) -> Problem:
+        return Problem(path, _line_of(lines, key), key, message)
+
+    from reporter.ingest.formats import EXTENSIONS  # here, not at the top: ingest imports this module
+
+    formats = [item.format or EXTENSIONS.get(item.path.suffix.lower()) for item in inputs]
+    problems.extend(format_option_problems(inputs, formats, problem))
+    if score.cache is not None and config.score.use_cache:
+        problems.extend(cache_problems(score.cache, problem))
     read_files = [(f"inputs[{i}].path", item.path) for i, item in enumerate(inputs)]
     read_files += [("departments.staff_map", departments.staff_map), ("score.thresholds_file", score.thresholds_file),
                    ("score.cache", score.cache), ("validation.labelled_sample", validation.labelled_sample),
                    ("validation.review_file", validation.review_file), ("report.logo", report.logo)]
-    problems.extend(output_folder_problems(
-        out_dir, "--out" if output is not None else "report.output", read_files,
-        lambda key, message: Problem(path, _line_of(lines, key), key, message),
-    ))
+    problems.extend(output_folder_problems(out_dir, "--out" if output is not None else "report.output", read_files, problem))
     for year in config.report.comparison_years:
         if year >= config.report.reporting_year:
             problems.append(
@@ -425,29 +430,6 @@ def _resolve_paths(
             "validation": validation,
         }
     )
-
-
-#: Input options that only a CSV reader uses, with the value that means "not set".
-_CSV_ONLY = {"columns": {}, "delimiter": None, "list_separator": ";"}
-
-
-def _options_for_other_formats(config: Config, path: Path, lines: dict[str, int]) -> list[Problem]:
-    """CSV-only options on an input that is BibTeX or RIS (by `format` or extension) would be ignored: refuse them."""
-    from reporter.ingest.formats import EXTENSIONS  # here, not at the top: ingest imports this module
-
-    problems = []
-    for i, item in enumerate(config.inputs):
-        fmt = item.format or EXTENSIONS.get(item.path.suffix.lower())
-        if fmt is None or fmt == "csv":
-            continue
-        for option, unset in _CSV_ONLY.items():
-            if getattr(item, option) != unset:
-                key = f"inputs[{i}].{option}"
-                problems.append(Problem(path, _line_of(lines, key), key, (
-                    f"applies to CSV files only, but {item.path.name} is read as {fmt}; remove it, "
-                    f"or set format = \"csv\" if the file is a CSV export"
-                )))
-    return problems
 
 
 def empty_year_problems(config: Config, years_present: set[int], n_kept: int) -> list[Problem]:

@@ -178,3 +178,14 @@ def test_csv_only_options_on_a_bibtex_or_ris_input_are_refused(tmp_path):
         f"{path}:13: inputs[1].delimiter: applies to CSV files only, but b.ris is read as ris; remove it, "
         'or set format = "csv" if the file is a CSV export',
     ]
+
+
+def test_a_cache_path_that_is_not_a_cache_is_refused_before_scoring(tmp_path):
+    (tmp_path / "notes.txt").write_text("my notes, not a database\n")
+    path = _write(tmp_path, GOOD + '\n[score]\ncache = "notes.txt"\n')
+    assert _problems(path) == [
+        f"{path}:11: score.cache: {tmp_path / 'notes.txt'} is not an embedding cache (file is not a database); "
+        "point score.cache at another file, or delete this one if it is an old cache"]
+    (tmp_path / "folder").mkdir()
+    path = _write(tmp_path, GOOD + '\n[score]\ncache = "folder"\n')
+    assert _problems(path) == [f"{path}:11: score.cache: {tmp_path / 'folder'} is a folder; expected the cache file's path"]

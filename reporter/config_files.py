@@ -1,13 +1,16 @@
-"""Where a build writes, checked when the config loads, before any input is read or the model loads.
+"""Checks of the files a config names, run when it loads, before any input is read or the model loads.
 
 The output folder belongs to the build: it fills it with the report, the exports and the manifest.
 So it must be a folder (or creatable) that can be written to, and no file the build reads may lie
-inside it, or a build would replace the user's own data with its tables.
+inside it, or a build would replace the user's own data with its tables. An existing cache file must
+be a cache, and options a reader would ignore are refused. Each check takes `problem(key, message)`,
+which places a Problem at the key's line of the config file.
 """
 
 from __future__ import annotations
 
 import os
+import sqlite3
 from pathlib import Path
 from typing import Callable, Iterable
 
@@ -66,3 +69,43 @@ def _inside(file: Path, folder: Path) -> bool:
     except (OSError, RuntimeError):  # a link loop: the plain comparison stands
         pass
     return any(f == d or d in f.parents for f, d in pairs)
+
+
+#: Input options that only a CSV reader uses, with the value that means "not set".
+CSV_ONLY = {"columns": {}, "delimiter": None, "list_separator": ";"}
+
+
+def format_option_problems(inputs, formats: list[str | None], problem: Callable[[str, str], Problem]) -> list[Problem]:
+    """CSV-only options on an input read as BibTeX or RIS (`formats`: by `format` or extension) would be
+    ignored without a word: refuse them."""
+    problems = []
+    for i, (item, fmt) in enumerate(zip(inputs, formats)):
+        if fmt is None or fmt == "csv":
+            continue
+        for option, unset in CSV_ONLY.items():
+            if getattr(item, option) != unset:
+                problems.append(problem(f"inputs[{i}].{option}", (
+                    f"applies to CSV files only, but {item.path.name} is read as {fmt}; remove it, "
+                    'or set format = "csv" if the file is a CSV export'
+                )))
+    return problems
+
+
+def cache_problems(cache: Path, problem: Callable[[str, str], Problem]) -> list[Problem]:
+    """An existing score.cache must be an SQLite file (a cache of ours, or empty): found now, not after scoring."""
+    if cache.is_dir():
+        return [problem("score.cache", f"{cache} is a folder; expected the cache file's path")]
+    if not cache.exists():
+        return []
+    try:
+        db = sqlite3.connect(f"{cache.resolve().as_uri()}?mode=ro", uri=True)
+        try:
+            db.execute("PRAGMA schema_version").fetchone()  # reads the header: fails on a file of another kind
+        finally:
+            db.close()
+    except sqlite3.Error as exc:
+        return [problem("score.cache", (
+            f"{cache} is not an embedding cache ({exc}); point score.cache at another file, "
+            "or delete this one if it is an old cache"
+        ))]
+    return []
