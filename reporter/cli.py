@@ -63,7 +63,7 @@ def main() -> None:
 def intake(config_path: Path, out_dir: Path | None, verbose: int, quiet: bool) -> None:
     """Check the config and inputs, print the intake summary, write intake-log.csv beside the config or into --out (no model)."""
     from reporter.config import load_config
-    from reporter.pipeline import check_years, run_intake, write_intake
+    from reporter.pipeline import check_intake, run_intake, write_intake
     from reporter.summary import format_intake_summary
 
     _setup_logging(verbose, quiet)
@@ -77,7 +77,7 @@ def intake(config_path: Path, out_dir: Path | None, verbose: int, quiet: bool) -
     for label, path in written.items():
         click.echo(f"{label}: {path}")
     try:
-        check_years(config, result)  # what `build` would refuse, said here too
+        check_intake(config, result)  # what `build` would refuse, said here too
     except ReporterError as error:
         _fail(error)
 

@@ -124,6 +124,10 @@ class InputConfig(_Section):
     list_separator: str = Field(
         default=";", description="CSV only: separator inside cells holding several authors, keywords, etc."
     )
+    allow_empty: bool = Field(
+        default=False,
+        description="Accept this input yielding no records (an export that may be empty); otherwise that stops intake and build.",
+    )
 
     @field_validator("columns")
     @classmethod
@@ -432,19 +436,27 @@ def _resolve_paths(
     )
 
 
-def empty_year_problems(config: Config, years_present: set[int], n_kept: int) -> list[Problem]:
-    """One problem per year in scope without a kept publication, unless report.allow_empty_years."""
-    report = config.report
-    if report.allow_empty_years:
-        return []
+def intake_problems(config: Config, years_present: set[int], n_kept: int,
+                    files: tuple[tuple[str, int, str], ...]) -> list[Problem]:
+    """What stops a build after intake, before the model loads: an input that yielded no record (unless
+    its allow_empty is set), a year in scope without a kept publication (unless report.allow_empty_years)."""
     path = config.config_path
     try:
         lines = _key_lines(path.read_text(encoding="utf-8"))
     except (OSError, UnicodeDecodeError):
         lines = {}
+    problems = []
+    for i, (item, (name, n_read, note)) in enumerate(zip(config.inputs, files)):
+        if n_read == 0 and not item.allow_empty:
+            key = f"inputs[{i}].path"
+            problems.append(Problem(path, _line_of(lines, key), key, (
+                f"{name}: {note or 'no records found'}; if this export may be empty, set allow_empty = true for it"
+            )))
+    report = config.report
+    if report.allow_empty_years:
+        return problems
     found = ", ".join(str(y) for y in sorted(years_present)) or "none"
     fix = "remove it, add the export that holds it, or set report.allow_empty_years = true"
-    problems = []
     for key, years in (("report.reporting_year", (report.reporting_year,)),
                        ("report.comparison_years", report.comparison_years)):
         for year in years:

@@ -9,7 +9,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from reporter.config import Config, empty_year_problems
+from reporter.config import Config, intake_problems
 from reporter.enrich import enrich
 from reporter.errors import ReporterError
 from reporter.ingest import read_inputs
@@ -32,10 +32,10 @@ class RunResult:
     removed: tuple[Path, ...] = ()  # files of an earlier build in the output folder that this one did not write
 
 
-def check_years(config: Config, intake: IntakeResult) -> None:
-    """Raise when the reporting year or a comparison year has no kept publication (see report.allow_empty_years)."""
+def check_intake(config: Config, intake: IntakeResult) -> None:
+    """Raise when an input yielded no record or a year in scope has no kept publication (see `intake_problems`)."""
     years = set(intake.records["year"].dropna().astype(int)) if len(intake.records) else set()
-    problems = empty_year_problems(config, years & set(config.report.years), len(intake.records))
+    problems = intake_problems(config, years & set(config.report.years), len(intake.records), intake.files)
     if problems:
         raise ReporterError(problems)
 
@@ -70,8 +70,9 @@ def run(config: Config, show_progress: bool = True, keep_sentences: bool = False
 
     started = dt.datetime.now(dt.timezone.utc).replace(microsecond=0)
     intake = run_intake(config)
-    # Before the model loads: a year with nothing in it would compare as "no change" or a fall to 0%.
-    check_years(config, intake)
+    # Before the model loads: an input that gave nothing is a lost file, and a year with nothing in
+    # it would compare as "no change" or a fall to 0%.
+    check_intake(config, intake)
     # Scores are computed for every kept record of every year in one run, with one model,
     # framework and threshold: that is what makes year-on-year changes like-for-like.
     parts = load_scoring_parts(config.score)

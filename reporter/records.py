@@ -136,3 +136,6 @@ class IntakeResult:
     records: pd.DataFrame  # RECORD_COLUMNS (+ ENRICHED_COLUMNS after enrich); kept records only
     log: pd.DataFrame  # INTAKE_LOG_COLUMNS; one row per record read
     warnings: tuple[str, ...] = ()  # file-level notes, e.g. an encoding fallback
+    # (source file, records read, the note on a file that yielded none), one per configured input in
+    # config order, so a file that yielded nothing still shows in the per-file tables.
+    files: tuple[tuple[str, int, str], ...] = ()

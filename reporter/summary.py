@@ -17,7 +17,8 @@ def format_intake_summary(result: IntakeResult) -> str:
     log = result.log
     require_columns(log, INTAKE_LOG_COLUMNS, "format_intake_summary")
     parts = [
-        _table(("file", *_COUNT_HEADERS), _count_rows(log, log["source_file"].astype(str))),
+        _table(("file", *_COUNT_HEADERS), _count_rows(log, log["source_file"].astype(str),
+                                                      tuple(name for name, _, _ in result.files))),
         _table(("year", *_COUNT_HEADERS), _count_rows(log, _year_labels(log["year"]))),
     ]
     set_aside = log[log["status"] == "set_aside"]
@@ -54,10 +55,11 @@ def _year_labels(years: pd.Series) -> pd.Series:
     return years.map(lambda y: "no year" if pd.isna(y) else str(int(y)))
 
 
-def _count_rows(log: pd.DataFrame, groups: pd.Series) -> list[tuple[str, ...]]:
+def _count_rows(log: pd.DataFrame, groups: pd.Series, always: tuple[str, ...] = ()) -> list[tuple[str, ...]]:
+    """Counts per group, plus a row of zeros for each label in `always` without a record (a file that gave none)."""
     rows: list[tuple[str, ...]] = []
     # Years sort as text, which is numeric order for four digits; "no year" comes last.
-    labels = sorted(set(groups), key=lambda label: (label == "no year", label))
+    labels = sorted(set(groups) | set(always), key=lambda label: (label == "no year", label))
     for label in labels:
         rows.append((label, *_counts(log[groups == label])))
     rows.append(("all", *_counts(log)))

@@ -58,5 +58,5 @@ def enrich(intake: IntakeResult, report: ReportConfig, departments: DepartmentCo
     columns = [*RECORD_COLUMNS, *ENRICHED_COLUMNS]
     extra_columns = [c for c in records.columns if c not in columns]
     records = records[columns + extra_columns].reset_index(drop=True)
-    return IntakeResult(records=records, log=log, warnings=tuple(warnings))
+    return IntakeResult(records=records, log=log, warnings=tuple(warnings), files=intake.files)
 

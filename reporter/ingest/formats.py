@@ -44,3 +44,27 @@ def guess_format_from_text(text: str) -> str | None:
     if any(d in first for d in ",;\t|"):
         return "csv"
     return None
+
+
+_FORMAT_NAMES = {"bibtex": "BibTeX", "ris": "RIS", "csv": "CSV"}
+# A workbook renamed .csv: the zip container of .xlsx/.ods, or the OLE container of .xls.
+_WORKBOOK_MAGIC = (b"PK\x03\x04", b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1")
+
+
+def why_nothing_read(path: Path, fmt: str, encoding: str | None = None) -> str:
+    """The note for an input that yielded no record, saying what to do where the content tells."""
+    with path.open("rb") as handle:
+        head = handle.read(_PROBE_BYTES)
+    if not head:
+        return "file is empty (0 bytes); nothing read"
+    if head.startswith(_WORKBOOK_MAGIC):
+        return ("no records found: this is a spreadsheet workbook, not CSV text; save it from the "
+                "spreadsheet program as CSV (UTF-8) and give that file")
+    text = decode_bytes(head, encoding).text
+    looks_like = guess_format_from_text(text)
+    if looks_like in ("ris", "bibtex") and looks_like != fmt:
+        return (f"no records found: the content looks like {_FORMAT_NAMES[looks_like]}, not {_FORMAT_NAMES[fmt]}; "
+                f'set format = "{looks_like}" for this input')
+    if fmt == "csv" and len([line for line in text.split("\n") if line.strip()]) == 1:
+        return "no records found: the file holds a header line and no rows"
+    return "no records found"

@@ -16,7 +16,7 @@ import pandas as pd
 
 from reporter.config import InputConfig, LimitsConfig
 from reporter.errors import InputError, Problem
-from reporter.ingest.formats import READERS, guess_format
+from reporter.ingest.formats import READERS, guess_format, why_nothing_read
 from reporter.records import INTAKE_LOG_COLUMNS, RECORD_COLUMNS, IntakeResult, RawEntry, ReadResult, Rejected
 
 _YEAR_RUN = re.compile(r"(?<!\d)\d{4}")
@@ -54,10 +54,11 @@ def _read_input(index: int, cfg: InputConfig, max_field_length: int, base_dir: P
             message = 'cannot tell the format from the file name or content; set format = "bibtex", "ris" or "csv"'
             raise InputError(Problem(path, None, f"inputs[{index}].format", message))
         result = READERS[fmt](path, source_name(path, base_dir), cfg, max_field_length)
-        if result.n_read == 0 and not result.warnings:
-            # A configured export that yields nothing is worth a line, or it vanishes unnoticed.
-            note = "file is empty (0 bytes); nothing read" if path.stat().st_size == 0 else "no records found"
-            result = dataclasses.replace(result, warnings=(note,))
+        if result.n_read == 0:
+            # A configured export that yields nothing is worth a line that says why, or it vanishes unnoticed.
+            note = why_nothing_read(path, fmt, cfg.encoding)
+            if not result.warnings or note.startswith("no records found: this is a spreadsheet workbook"):
+                result = dataclasses.replace(result, warnings=(note,))
         return result
     except OSError as exc:
         raise InputError(Problem(path, None, key, f"cannot read the file: {exc.strerror or exc}")) from None
@@ -122,7 +123,9 @@ def build_intake(results: Iterable[ReadResult], years: tuple[int, ...]) -> Intak
             )
             if year is not None and not reason:
                 record_rows.append(_record_row(record_id, item, year))
-    return IntakeResult(records=_records_frame(record_rows), log=_log_frame(log_rows), warnings=tuple(warnings))
+    files = tuple((r.source_file, r.n_read, r.warnings[-1] if r.n_read == 0 and r.warnings else "") for r in results)
+    return IntakeResult(records=_records_frame(record_rows), log=_log_frame(log_rows), warnings=tuple(warnings),
+                        files=files)
 
 
 def _set_aside_reason(title: str, year: int | None, years: tuple[int, ...]) -> str:

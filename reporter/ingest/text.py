@@ -64,6 +64,10 @@ def _decode(data: bytes, encoding: str | None, warnings: list[str]) -> tuple[str
             except UnicodeDecodeError as exc:
                 warnings.append(f"bytes not valid {codec} after its byte-order mark (byte {exc.start}); replaced")
                 return body.decode(codec, errors="replace"), codec
+    unmarked = _utf16_without_bom(data)
+    if unmarked:
+        warnings.append(f"no byte-order mark; read as {unmarked.upper()} (every other byte is zero)")
+        return data.decode(unmarked, errors="replace"), unmarked
     try:
         return data.decode("utf-8"), "utf-8"
     except UnicodeDecodeError:
@@ -71,6 +75,26 @@ def _decode(data: bytes, encoding: str | None, warnings: list[str]) -> tuple[str
     # cp1252 is what spreadsheet programs on Windows write; five byte values are undefined in it.
     warnings.append("decoded as cp1252 after UTF-8 failed")
     return data.decode("cp1252", errors="replace"), "cp1252"
+
+
+def _utf16_without_bom(data: bytes) -> str | None:
+    """"utf-16-le" or "utf-16-be" when the bytes look like UTF-16 text that lost its byte-order mark.
+
+    Latin-script text in UTF-16 has a zero in every other byte (the high byte of each character);
+    such text also decodes as UTF-8, full of NULs, so this is asked first. A binary file has zeros
+    in both positions and is left to the binary check.
+    """
+    head = data[:4096]
+    pairs = len(head) // 2
+    if pairs < 2:
+        return None
+    zeros_odd = sum(1 for b in head[1:2 * pairs:2] if b == 0) / pairs
+    zeros_even = sum(1 for b in head[0:2 * pairs:2] if b == 0) / pairs
+    if zeros_odd > 0.6 and zeros_even < 0.05:
+        return "utf-16-le"
+    if zeros_even > 0.6 and zeros_odd < 0.05:
+        return "utf-16-be"
+    return None
 
 
 def _looks_binary(text: str) -> bool:

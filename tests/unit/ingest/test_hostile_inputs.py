@@ -239,7 +239,8 @@ def test_empty_file_of_each_format_is_named_in_a_warning(name) -> None:
 
 def test_header_only_csv_says_no_records_were_found(tmp_path) -> None:
     (tmp_path / "header.csv").write_text("Title,Year\n")
-    assert _intake("header.csv", tmp_path).warnings == ("header.csv: no records found",)
+    assert _intake("header.csv", tmp_path).warnings == (
+        "header.csv: no records found: the file holds a header line and no rows",)
 
 
 @pytest.mark.parametrize("fmt", ["bibtex", "ris", "csv"])

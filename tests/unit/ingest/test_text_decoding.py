@@ -41,6 +41,15 @@ def test_configured_encoding_is_used_and_bad_bytes_are_reported() -> None:
     assert decoded.warnings == ("bytes not valid utf-8 (first at byte 3); replaced with U+FFFD",)
 
 
+@pytest.mark.parametrize("codec", ["utf-16-le", "utf-16-be"])
+def test_utf16_without_byte_order_mark_is_read_and_said(codec: str) -> None:
+    """Issue 15: such a file was called binary and lost. Python's codecs are the reference encoding."""
+    decoded = decode_bytes(TEXT.encode(codec))
+    assert decoded.text == "Title;Année\nMoor café;2021\n"
+    assert decoded.encoding == codec
+    assert decoded.warnings == (f"no byte-order mark; read as {codec.upper()} (every other byte is zero)",)
+
+
 def test_binary_content_yields_no_text_and_a_warning() -> None:
     decoded = decode_bytes(bytes(range(256)) * 4)
     assert decoded.text == ""

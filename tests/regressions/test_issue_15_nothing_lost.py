@@ -1,4 +1,4 @@
-"""Issue 15: a build never writes over what it reads, and a bad output folder is a message, not a traceback.
+"""Issue 15: nothing lost, nothing false: a build never writes over what it reads, empty inputs and years stop it, a bad output folder is a message.
 
 Each case as a user hits it, through the command line; the config fails before any input is read
 or the model loads, so these run without the model.
@@ -161,3 +161,76 @@ def test_a_build_without_the_extras_removes_the_earlier_builds_extras(tmp_path):
     assert not (out / "data" / "sentences.csv").exists() and not (out / "review-worksheet.csv").exists()
     assert "removed (from an earlier build, not made this time)" in second.output
     assert (out / "my-notes.txt").exists() and (out / "report.pdf").exists()
+
+
+# --- an input that yields no records ---------------------------------------------------------
+
+ONE_INPUT = """\
+[report]
+institution = "Small Test University"
+home_country = "IE"
+reporting_year = 2025
+output = "out"
+
+[[inputs]]
+path = "good.csv"
+
+[[inputs]]
+path = "{name}"
+{extra}"""
+
+
+def _one_bad_input(tmp_path: Path, name: str, data: bytes, extra: str = "") -> Path:
+    (tmp_path / "good.csv").write_text("title,abstract,year\nWells,Arsenic in wells.,2025\n", encoding="utf-8")
+    (tmp_path / name).write_bytes(data)
+    config = tmp_path / "waymark.toml"
+    config.write_text(ONE_INPUT.format(name=name, extra=extra), encoding="utf-8")
+    return config
+
+
+def _workbook() -> bytes:
+    import io
+    import zipfile
+
+    buffer = io.BytesIO()
+    with zipfile.ZipFile(buffer, "w") as book:  # the container of an .xlsx workbook
+        book.writestr("[Content_Types].xml", "<Types/>")
+        book.writestr("xl/workbook.xml", "<workbook/>")
+    return buffer.getvalue()
+
+
+@pytest.mark.parametrize(("name", "data", "reason"), [
+    ("export.bib", b"TY  - JOUR\nTI  - Clean water in schools\nPY  - 2025\nER  - \n",
+     'no records found: the content looks like RIS, not BibTeX; set format = "ris" for this input'),
+    ("export.csv", _workbook(),
+     "no records found: this is a spreadsheet workbook, not CSV text; save it from the spreadsheet program "
+     "as CSV (UTF-8) and give that file"),
+    ("export.csv", b"title,abstract,year\n", "no records found: the file holds a header line and no rows"),
+    ("export.ris", b"", "file is empty (0 bytes); nothing read"),
+])
+@pytest.mark.parametrize("command", ["intake", "build"])
+def test_an_input_that_yields_nothing_stops_with_what_to_do(tmp_path, name, data, reason, command):
+    config = _one_bad_input(tmp_path, name, data)
+    result = CliRunner().invoke(main, [command, str(config), "-q"])
+    assert result.exit_code == 1
+    assert (f"{config}:11: inputs[1].path: {name}: {reason}; if this export may be empty, "
+            "set allow_empty = true for it") in result.output
+    assert not (tmp_path / "out" / "report.html").exists()
+
+
+def test_an_input_allowed_to_be_empty_shows_in_the_file_table_with_zero(tmp_path):
+    config = _one_bad_input(tmp_path, "export.csv", b"title,abstract,year\n", extra="allow_empty = true\n")
+    result = CliRunner().invoke(main, ["intake", str(config), "-q"])
+    assert result.exit_code == 0, result.output
+    row = next(line for line in result.output.splitlines() if line.startswith("export.csv"))
+    assert row.split() == ["export.csv", "0", "0", "0", "0"]
+
+
+def test_utf16_without_byte_order_mark_is_read(tmp_path):
+    data = "title,abstract,year\nMoor café,Peat and water.,2025\n".encode("utf-16-le")
+    config = _one_bad_input(tmp_path, "export.csv", data)
+    result = CliRunner().invoke(main, ["intake", str(config), "-q"])
+    assert result.exit_code == 0, result.output
+    assert "export.csv: no byte-order mark; read as UTF-16-LE" in result.output
+    row = next(line for line in result.output.splitlines() if line.startswith("export.csv"))
+    assert row.split()[:3] == ["export.csv", "1", "1"]
