@@ -38,6 +38,26 @@ def check_intake(config: Config, intake: IntakeResult) -> None:
     problems = intake_problems(config, years & set(config.report.years), len(intake.records), intake.files)
     if problems:
         raise ReporterError(problems)
+    _parse_what_the_report_reads(config, intake)
+
+
+def _parse_what_the_report_reads(config: Config, intake: IntakeResult) -> None:
+    """Theme, review file and labelled sample, parsed now as the build will later: a mistake in them
+    is found by `intake` and before the model loads, not after scoring."""
+    from reporter.render.themes import load_theme
+    from reporter.score.framework import load_framework
+
+    load_theme(config.report.theme)
+    validation = config.validation
+    if validation.review_file is None and validation.labelled_sample is None:
+        return
+    codes = load_framework(config.score.framework).goal_codes
+    if validation.review_file is not None:
+        from reporter.score.review import read_review_file
+
+        read_review_file(validation.review_file, intake.records["record_id"], codes)
+    if validation.labelled_sample is not None:
+        _labelled_sample(config, intake, codes)
 
 
 def write_intake(config: Config, intake: IntakeResult, folder: Path | None = None) -> dict[str, Path]:

@@ -86,17 +86,20 @@ def _evidence_row(r, records: pd.DataFrame) -> EvidenceRow:
     )
 
 
-def _intake(log: pd.DataFrame) -> tuple[tuple[InputRow, ...], InputRow]:
+def _intake(log: pd.DataFrame, all_files: Sequence[str] = ()) -> tuple[tuple[InputRow, ...], InputRow]:
     def counts(part: pd.DataFrame, name: str, fmt: str) -> InputRow:
         status = part["status"]
         return InputRow(name, fmt, len(part), int((status == "kept").sum()), int((status == "merged").sum()),
                         int((status == "set_aside").sum()))
 
-    rows = tuple(
+    rows = [
         counts(part, str(name), ", ".join(sorted(part["format"].astype(str).unique())))
         for name, part in log.groupby("source_file", sort=True)
-    )
-    return rows, counts(log, "all files", "")
+    ]
+    # A configured input that yielded no record has no log row; it still gets its line, with 0.
+    seen = {row.source_file for row in rows}
+    rows += [InputRow(name, "", 0, 0, 0, 0) for name in all_files if name not in seen]
+    return tuple(sorted(rows, key=lambda row: row.source_file)), counts(log, "all files", "")
 
 
 def _reasons(log: pd.DataFrame) -> tuple[CountRow, ...]:
@@ -144,7 +147,7 @@ def build_method(inputs: RenderInputs, goals: Sequence[tuple[str, str]]) -> Meth
     distinct = {float(v) for v in per_goal.values()}
     varied = len(distinct) > 1 or (distinct and single is not None and distinct != {float(single)})
     thresholds = tuple(CountRow(code, float(per_goal[code]), None) for code, _ in goals if code in per_goal) if varied else ()
-    inputs_rows, totals = _intake(inputs.intake_log)
+    inputs_rows, totals = _intake(inputs.intake_log, [str(f.get("path", "")) for f in inputs.manifest.get("inputs", [])])
     extras = tuple(
         CountRow(str(k).replace("_", " "), v, None) for k, v in sorted(findings.extra.items())
         if isinstance(v, (int, float)) and not isinstance(v, bool)

@@ -234,3 +234,22 @@ def test_utf16_without_byte_order_mark_is_read(tmp_path):
     assert "export.csv: no byte-order mark; read as UTF-16-LE" in result.output
     row = next(line for line in result.output.splitlines() if line.startswith("export.csv"))
     assert row.split()[:3] == ["export.csv", "1", "1"]
+
+
+# --- intake finds what build would reject, before the model loads ---------------------------
+
+
+@pytest.mark.parametrize("command", ["intake", "build"])
+def test_missing_theme_and_bad_review_rows_are_found_by_intake_and_before_scoring(tmp_path, command):
+    config = _years_project(tmp_path, 2025, "2024", extra='theme = "no-such-theme"\n')
+    result = CliRunner().invoke(main, [command, str(config), "-q"])
+    assert result.exit_code == 1
+    assert "report.theme: no theme named 'no-such-theme'" in result.output
+    assert "Scored" not in result.output
+
+    config.write_text(config.read_text(encoding="utf-8").replace('theme = "no-such-theme"\n', "")
+                      + '\n[validation]\nreview_file = "review.csv"\n', encoding="utf-8")
+    (tmp_path / "review.csv").write_text("record_id,goal,decision,note\npubs:1,6,maybe,unsure\n", encoding="utf-8")
+    result = CliRunner().invoke(main, [command, str(config), "-q"])
+    assert result.exit_code == 1
+    assert f"{tmp_path / 'review.csv'}:2: decision: expected include or exclude, got 'maybe'" in result.output

@@ -159,3 +159,14 @@ def test_departments_with_non_english_publications_are_named_with_their_count():
 
 def test_no_non_english_publications_no_lower_reliability_note():
     assert "Scored with lower reliability" not in _rendered(make_inputs())
+
+
+def test_an_input_that_gave_no_record_still_has_its_line_in_the_intake_table():
+    """Issue 15: an empty export allowed on purpose (allow_empty) is listed with 0, not left out."""
+    inputs = make_inputs()
+    known = sorted(inputs.intake_log["source_file"].astype(str).unique())
+    manifest = {**inputs.manifest, "inputs": [{"path": name} for name in [*known, "empty-export.csv"]]}
+    context = build_context(swap(inputs, manifest=manifest), make_report(), load_theme("default"))
+    rows = {row.source_file: row for row in context.method.inputs}
+    assert set(rows) == {*known, "empty-export.csv"}
+    assert (rows["empty-export.csv"].n_read, rows["empty-export.csv"].n_kept) == (0, 0)
