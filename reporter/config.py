@@ -401,6 +401,7 @@ def _resolve_paths(
             "review_file": resolve(config.validation.review_file, "validation.review_file", True),
         }
     )
+
     def problem(key: str, message: str) -> Problem:
         return Problem(path, _line_of(lines, key), key, message)
 

@@ -11,7 +11,7 @@ from pathlib import Path
 
 from reporter.config import Config, intake_problems
 from reporter.enrich import enrich
-from reporter.errors import ReporterError
+from reporter.errors import Problem, ReporterError
 from reporter.ingest import read_inputs
 from reporter.records import IntakeResult
 
@@ -67,7 +67,6 @@ def write_intake(config: Config, intake: IntakeResult, folder: Path | None = Non
     manifest, and a check of other inputs must not replace it. A `folder` holding a built report
     (its manifest.json) is refused for the same reason.
     """
-    from reporter.errors import Problem
     from reporter.render.exports import write_intake_log
 
     target = folder if folder is not None else config.base_dir
@@ -313,7 +312,7 @@ def check_labels(config: Config, thresholds_path: Path | None = None, show_progr
 
 def _labelled_sample(config: Config, intake: IntakeResult, codes: tuple[str, ...]):
     from reporter.analyse.labelled import read_labelled_sample
-    from reporter.errors import ConfigError, Problem
+    from reporter.errors import ConfigError
 
     path = config.validation.labelled_sample
     if path is None:

@@ -51,15 +51,23 @@ _FORMAT_NAMES = {"bibtex": "BibTeX", "ris": "RIS", "csv": "CSV"}
 _WORKBOOK_MAGIC = (b"PK\x03\x04", b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1")
 
 
-def why_nothing_read(path: Path, fmt: str, encoding: str | None = None) -> str:
-    """The note for an input that yielded no record, saying what to do where the content tells."""
+def why_nothing_read(path: Path, fmt: str, encoding: str | None, warnings: tuple[str, ...]) -> tuple[str, ...]:
+    """The warnings for an input that yielded no record: the reader's own when it had any (a binary
+    file, say), else a note that says what to do where the content tells. A workbook's note replaces
+    the reader's "binary content", which would not say what to do."""
     with path.open("rb") as handle:
         head = handle.read(_PROBE_BYTES)
-    if not head:
-        return "file is empty (0 bytes); nothing read"
     if head.startswith(_WORKBOOK_MAGIC):
         return ("no records found: this is a spreadsheet workbook, not CSV text; save it from the "
-                "spreadsheet program as CSV (UTF-8) and give that file")
+                "spreadsheet program as CSV (UTF-8) and give that file",)
+    if warnings:
+        return warnings
+    return (_nothing_read_note(head, fmt, encoding),)
+
+
+def _nothing_read_note(head: bytes, fmt: str, encoding: str | None) -> str:
+    if not head:
+        return "file is empty (0 bytes); nothing read"
     text = decode_bytes(head, encoding).text
     looks_like = guess_format_from_text(text)
     if looks_like in ("ris", "bibtex") and looks_like != fmt:

@@ -56,9 +56,7 @@ def _read_input(index: int, cfg: InputConfig, max_field_length: int, base_dir: P
         result = READERS[fmt](path, source_name(path, base_dir), cfg, max_field_length)
         if result.n_read == 0:
             # A configured export that yields nothing is worth a line that says why, or it vanishes unnoticed.
-            note = why_nothing_read(path, fmt, cfg.encoding)
-            if not result.warnings or note.startswith("no records found: this is a spreadsheet workbook"):
-                result = dataclasses.replace(result, warnings=(note,))
+            result = dataclasses.replace(result, warnings=why_nothing_read(path, fmt, cfg.encoding, result.warnings))
         return result
     except OSError as exc:
         raise InputError(Problem(path, None, key, f"cannot read the file: {exc.strerror or exc}")) from None

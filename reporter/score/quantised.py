@@ -10,6 +10,7 @@ the vectors still differ, so they are cached under their own key (checksum + ":o
 
 from __future__ import annotations
 
+import contextlib
 import json
 import logging
 import os
@@ -134,7 +135,11 @@ def _export_int8(folder: Path, path: Path) -> None:
         level = root.level
         root.setLevel(logging.ERROR)  # the quantiser's advice on pre-processing goes to the root logger
         try:
-            quantize_dynamic(str(fp32), str(int8), weight_type=QuantType.QInt8, per_channel=True)
+            # onnxruntime's shape inference saves "sym_shape_infer_temp.onnx" (and its external data)
+            # into the working folder when it cannot infer every shape; run it from the temporary folder
+            # so those by-products go with it. Once per export, before any scoring thread starts.
+            with contextlib.chdir(work):
+                quantize_dynamic(str(fp32), str(int8), weight_type=QuantType.QInt8, per_channel=True)
         finally:
             root.setLevel(level)
         os.replace(int8, path)
