@@ -11,7 +11,7 @@ from typing import Mapping
 import numpy as np
 import pandas as pd
 
-from reporter.analyse.change import check_comparable, year_changes
+from reporter.analyse.change import check_comparable, year_changes, year_ranges
 from reporter.analyse.cooccurrence import cooccurrence_table
 from reporter.analyse.decisions import check_policy, prepare_decisions
 from reporter.analyse.export import findings_tables, findings_to_json
@@ -88,6 +88,11 @@ def analyse(
     scored = in_scope[in_scope["record_id"].isin(scored_ids)]
     rng = np.random.default_rng(cfg.seed)
     size = cfg.min_group_size
+    # A year without a scored publication is never compared: an empty side would read as "no change".
+    present = tuple(sorted(int(y) for y in scored["year"].unique()))
+    compared = tuple(y for y in sorted(int(y) for y in comparison_years) if y in present)
+    if int(reporting_year) not in present:
+        compared = ()
 
     by_year = year_shares(scored, decisions, codes, years, cfg.confidence, size)
     by_department = department_shares(scored, decisions, codes, cfg.counting, cfg.confidence, size)
@@ -112,8 +117,11 @@ def analyse(
         "policy": policy,
         "reporting_year": int(reporting_year),
         "comparison_years": tuple(sorted(int(y) for y in comparison_years)),
+        "comparison_years_compared": compared,
+        "comparison_years_empty": tuple(sorted(int(y) for y in comparison_years if int(y) not in present)),
         "years": years,
-        "scope": "scored publications from " + ", ".join(str(y) for y in years),
+        "years_present": present,
+        "scope": "scored publications from " + year_ranges(years),
         "sensitivity_step": cfg.sensitivity_step,
         "seed": cfg.seed,
         "bootstrap_resamples": cfg.bootstrap_resamples,
@@ -124,9 +132,7 @@ def analyse(
         headline=headline_summary(decisions, codes, cfg.confidence, general_mentions, n_too_small),
         goals=goal_summary(decisions, goals, cfg.confidence, rng, cfg.bootstrap_resamples),
         by_year=by_year,
-        changes=year_changes(
-            by_year, codes, reporting_year, tuple(comparison_years), cfg.confidence, cfg.fdr, size
-        ),
+        changes=year_changes(by_year, codes, reporting_year, compared, cfg.confidence, cfg.fdr, size),
         by_department=by_department,
         by_country=by_country,
         collaboration=collaboration,

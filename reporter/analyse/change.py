@@ -28,14 +28,24 @@ COMPARABLE_FIELDS = (
 )
 
 
+def year_ranges(years) -> str:
+    """Years as runs: (2019, 2021, 2022, 2023) -> "2019, 2021-2023"; decades stay one short phrase."""
+    ordered = sorted({int(y) for y in years})
+    runs: list[list[int]] = []
+    for year in ordered:
+        if runs and year == runs[-1][-1] + 1:
+            runs[-1].append(year)
+        else:
+            runs.append([year])
+    return ", ".join(str(r[0]) if len(r) == 1 else f"{r[0]}-{r[-1]}" for r in runs)
+
+
 def baseline_label(years: tuple[int, ...]) -> str:
-    """"2024" for one year; "mean 2022-2024" for consecutive years; "mean 2019, 2021" otherwise."""
+    """"2024" for one year; "mean 2022-2024" for several (runs of years as ranges)."""
     years = tuple(sorted(years))
     if len(years) == 1:
         return str(years[0])
-    if list(years) == list(range(years[0], years[-1] + 1)):
-        return f"mean {years[0]}-{years[-1]}"
-    return "mean " + ", ".join(str(y) for y in years)
+    return "mean " + year_ranges(years)
 
 
 def _baselines(comparison_years: tuple[int, ...]) -> list[tuple[str, tuple[int, ...]]]:

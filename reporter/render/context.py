@@ -88,7 +88,8 @@ class ChangeRow:
     is_change: bool = _h("True when the change survived the adjustment")
     verdict: str = _h("'increase', 'decrease', 'no clear change' or 'too small'")
     also_against: tuple[str, ...] = _h(
-        "Summary only: the other baselines against which the same goal's change also held", default=()
+        "Summary and compact change table: the other baselines against which the same goal's change also held",
+        default=(),
     )
 
 
@@ -116,10 +117,16 @@ class GoalProfile:
 
 @dataclass(frozen=True)
 class ChangeSection:
-    has_comparison: bool = _h("False when no comparison years were configured")
+    has_comparison: bool = _h("False when no comparison was made (none configured, or no publications)")
     reporting_year: int = _h("The year the report is about")
-    comparison_years: tuple[int, ...] = _h("Earlier years compared with")
-    rows: tuple[ChangeRow, ...] = _h("Change table, framework order")
+    comparison_years: tuple[int, ...] = _h("Earlier years compared with: configured and holding publications")
+    empty_years: tuple[int, ...] = _h("Configured comparison years without a publication, so not compared")
+    is_reporting_year_empty: bool = _h("True when the reporting year has no publication, so nothing was compared")
+    rows: tuple[ChangeRow, ...] = _h(
+        "Compact change table, framework order: one row per goal against the pooled comparison years"
+    )
+    n_rows_full: int = _h("Rows of the full table (every goal against every baseline) in findings-changes.csv")
+    is_tested: bool = _h("True when at least one goal was large enough on both sides to be tested")
     chart: Chart | None = _h("Goal share per year with interval bands; None with a single year")
     fdr: float = _h("False discovery rate used to call a change a change")
 
@@ -158,7 +165,12 @@ class DepartmentSection:
 @dataclass(frozen=True)
 class PartnerSection:
     collaboration: tuple[GroupRow, ...] = _h("International, then domestic publications, with shares per goal")
-    countries: tuple[GroupRow, ...] = _h("Partner countries shown, most publications first")
+    countries: tuple[GroupRow, ...] = _h(
+        "Partner countries with at least the minimum group size, most publications first (at most 15)"
+    )
+    listed_countries: tuple[tuple[str, int], ...] = _h(
+        "The other partner countries as (name, joint publications), most first: named, without goal figures"
+    )
     n_countries: int = _h("Partner countries found in all")
     collaboration_chart: Chart | None = _h("International vs domestic goal shares")
     country_chart: Chart | None = _h("Partner country x goal heat map of aligned publications")

@@ -8,6 +8,8 @@ from __future__ import annotations
 
 import math
 
+from reporter.analyse.change import year_ranges
+
 MISSING = "–"  # shown where a figure does not exist (no data, too small, not computed)
 
 
@@ -76,6 +78,19 @@ def fmt_p(value: object) -> str:
     return "<0.001" if number < 0.001 else f"{number:.3f}"
 
 
+def fmt_years(years: object) -> str:
+    """Years as ranges: [2022, 2023, 2024] -> "2022-2024", so decades of years stay one phrase."""
+    return year_ranges(years or ())  # type: ignore[arg-type]
+
+
+def fmt_baselines(labels: object) -> str:
+    """Baseline labels: single years become ranges ("2022-2024"), pooled ones ("mean ...") follow as they are."""
+    labels = [str(label) for label in (labels or ())]  # type: ignore[union-attr]
+    years = [int(label) for label in labels if label.isdigit()]
+    others = [label for label in labels if not label.isdigit()]
+    return ", ".join(([year_ranges(years)] if years else []) + others)
+
+
 FILTERS = {
     "fmt_share": fmt_share,
     "fmt_interval": fmt_interval,
@@ -84,4 +99,6 @@ FILTERS = {
     "fmt_count": fmt_count,
     "fmt_score": fmt_score,
     "fmt_p": fmt_p,
+    "fmt_years": fmt_years,
+    "fmt_baselines": fmt_baselines,
 }

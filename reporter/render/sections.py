@@ -62,7 +62,9 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
     profile_rows = _goal_rows(findings.goals, goals)
     change_rows = _change_rows(findings.changes, goals)
     comparison_years = tuple(int(y) for y in meta.get("comparison_years", ()))
-    has_comparison = bool(comparison_years) and bool(change_rows)
+    # Older findings lack the per-year presence fields: then every configured year was compared.
+    compared = tuple(int(y) for y in meta.get("comparison_years_compared", comparison_years))
+    has_comparison = bool(compared) and bool(change_rows)
     headline = findings.headline
     ranked = sorted((r for r in profile_rows if r.share > 0), key=lambda r: -r.share)
     summary = Summary(
@@ -76,14 +78,19 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
         changes=_summary_changes(change_rows),
         has_comparison=has_comparison,
     )
-    years = tuple(sorted(int(y) for y in meta.get("years", ()))) or (int(report.reporting_year),)
-    n_years = findings.by_year["year"].nunique() if not findings.by_year.empty else 0
+    years = tuple(sorted(int(y) for y in meta.get("years_present", meta.get("years", ()))))
+    with_publications = findings.by_year.loc[findings.by_year["n"] > 0] if not findings.by_year.empty else None
+    n_years = with_publications["year"].nunique() if with_publications is not None else 0
     change = ChangeSection(
         has_comparison=has_comparison,
         reporting_year=int(report.reporting_year),
-        comparison_years=comparison_years,
-        rows=change_rows,
-        chart=charts.draw_change(findings.by_year, goals, theme) if n_years > 1 else None,
+        comparison_years=compared,
+        empty_years=tuple(int(y) for y in meta.get("comparison_years_empty", ())),
+        is_reporting_year_empty=int(report.reporting_year) not in years,
+        rows=_compact_change_rows(change_rows),
+        n_rows_full=len(change_rows),
+        is_tested=any(r.verdict != "too small" for r in change_rows),
+        chart=charts.draw_change(with_publications, goals, theme) if n_years > 1 else None,
         fdr=float(meta.get("fdr", math.nan)),
     )
     validation = validation_section.build_validation(findings.extra, goals, theme, POLICY_TEXT)
@@ -146,6 +153,21 @@ def _change_rows(frame: pd.DataFrame, goals: Sequence[tuple[str, str]]) -> tuple
     return tuple(rows)
 
 
+def _compact_change_rows(rows: Sequence[ChangeRow]) -> tuple[ChangeRow, ...]:
+    """One row per goal: the pooled baseline (the only one with a single comparison year), with the
+    single years its change also held against; every baseline stays in findings-changes.csv."""
+    by_goal: dict[str, list[ChangeRow]] = {}
+    for row in rows:
+        by_goal.setdefault(row.goal, []).append(row)
+    out = []
+    for group in by_goal.values():
+        pooled = [r for r in group if r.baseline.startswith("mean")]
+        lead = pooled[0] if pooled else group[0]
+        held = tuple(r.baseline for r in group if r is not lead and r.is_change)
+        out.append(dataclasses.replace(lead, also_against=held))
+    return tuple(out)
+
+
 def _group_rows(frame: pd.DataFrame, key: str, label: str, goals: Sequence[tuple[str, str]],
                 order: Sequence[str] | None = None) -> tuple[GroupRow, ...]:
     """One row per group with a cell per goal; groups largest first, then by name, unassigned last."""
@@ -206,13 +228,18 @@ def _partners(countries: pd.DataFrame, collaboration: pd.DataFrame, goals, theme
               min_size: int) -> PartnerSection:
     # Publications without a partner country are the domestic group, shown under collaboration instead.
     all_countries = _group_rows(countries.loc[~_unassigned(countries)], "country", "country_name", goals)
-    shown = all_countries[:N_COUNTRIES_SHOWN]
+    # Only countries with enough joint publications get goal figures; the rest are named with their count,
+    # so the table is not a grid of suppressed cells and no partner goes unmentioned.
+    large = [row for row in all_countries if row.n >= min_size]
+    shown = tuple(large[:N_COUNTRIES_SHOWN])
+    listed = tuple((row.label, int(row.n)) for row in all_countries if row not in shown)
     labels = {"international": "International", "domestic": "Domestic only"}
     collab = _group_rows(collaboration.assign(label=collaboration["group"].map(labels)), "group", "label",
                          goals, order=["international", "domestic"])
     return PartnerSection(
         collaboration=collab,
         countries=shown,
+        listed_countries=listed,
         n_countries=len(all_countries),
         collaboration_chart=charts.draw_collaboration(collab, goals, theme) if collab else None,
         country_chart=(charts.draw_group_heatmap(shown, goals, theme, what="partner countries", name="countries",

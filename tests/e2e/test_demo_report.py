@@ -124,7 +124,7 @@ def test_one_figure_is_the_same_in_html_csv_and_json(demo_build, findings, html)
 
 def test_pdf_has_contents_page_numbers_and_sections(pdf_pages):
     assert len(pdf_pages) >= 8
-    contents = _plain(pdf_pages[1])
+    contents = _plain(pdf_pages[0])  # the contents share the first page with the cover
     assert "Contents" in contents and "At a glance" in contents
     assert re.search(r"Goal profile\W+\d+", contents), "contents lists page numbers"
     full = _plain(" ".join(pdf_pages))
@@ -190,3 +190,22 @@ def test_changes_that_hold_are_the_ones_the_demo_plans(findings):
     unplanned = [h for h in held if planned.get(h[0]) != h[2]]
     assert not unplanned, f"changes the demo does not plan held up: {unplanned}"
     assert any(goal == "7" and verdict == "increase" for goal, _, verdict in held), "the planned rise of goal 7"
+
+
+def test_change_section_reads_one_row_per_goal_with_year_ranges(demo_build, pdf_pages):
+    html = (demo_build.out / "report.html").read_text(encoding="utf-8")
+    section = html[html.index('id="change-over-time"'):html.index('id="departments"')]
+    table = section[section.index('<table class="data change">'):section.index("</table>")]
+    assert table.count("<tr class=") == 17, "one row per goal; every baseline stays in findings-changes.csv"
+    text = _plain(re.sub(r"<[^>]+>", "", section))
+    assert "Change per goal, 2025 against mean 2022-2024" in text
+    assert "Goal shares per year, 2022-2025." in text
+    assert "findings-changes.csv (68 rows)" in text
+    pages = [i for i, page in enumerate(pdf_pages) if "Change over time" in page.split("\n")[0]]
+    assert len(pages) <= 2, "the change table and its chart fit on two pages"
+
+
+def test_first_page_holds_cover_and_contents_and_goal_profile_follows_at_a_glance(pdf_pages):
+    first = _plain(pdf_pages[0])
+    assert "Kestrel Heath University".upper() in first.upper() and "Contents" in first
+    assert "At a glance" in pdf_pages[1] and "Goal profile" in pdf_pages[1]

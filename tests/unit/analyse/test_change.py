@@ -108,3 +108,27 @@ def test_manifest_read_back_from_json_is_comparable():
     """Lists for tuples and a run timestamp do not make two runs unlike."""
     other = {**MANIFEST, "text_fields": ["title", "abstract", "keywords"], "created": "2025-02-01"}
     check_comparable(MANIFEST, other)
+
+
+def test_baseline_labels_give_runs_of_years_as_ranges():
+    assert baseline_label(tuple(range(1950, 2025))) == "mean 1950-2024"
+    assert baseline_label((2015, 2019, 2020, 2021)) == "mean 2015, 2019-2021"
+
+
+def test_a_comparison_year_without_publications_is_not_compared(year_corpus, goals):
+    records, scores = year_corpus({2023: (100, 20), 2024: (100, 60)})
+    findings = analyse(records, scores, goals, AnalysisConfig(bootstrap_resamples=100), 2024, (2019, 2023),
+                       THRESHOLDS, "score_only")
+    assert findings.meta["comparison_years"] == (2019, 2023), "as configured"
+    assert findings.meta["comparison_years_compared"] == (2023,)
+    assert findings.meta["comparison_years_empty"] == (2019,)
+    assert findings.meta["years_present"] == (2023, 2024)
+    assert set(findings.changes["baseline"]) == {"2023"}, "no row against an empty year, no pooled row with it"
+
+
+def test_an_empty_reporting_year_compares_nothing(year_corpus, goals):
+    records, scores = year_corpus({2023: (100, 20)})
+    findings = analyse(records, scores, goals, AnalysisConfig(bootstrap_resamples=100), 2024, (2023,),
+                       THRESHOLDS, "score_only")
+    assert findings.changes.empty
+    assert findings.meta["comparison_years_compared"] == ()
