@@ -5,6 +5,7 @@ or the model loads, so these run without the model.
 """
 
 import json
+import re
 from pathlib import Path
 
 import pytest
@@ -114,6 +115,18 @@ def test_empty_years_can_be_allowed_on_purpose(tmp_path):
     config = _years_project(tmp_path, 2025, "2019, 2024", extra="allow_empty_years = true\n")
     result = CliRunner().invoke(main, ["intake", str(config), "-q"])
     assert result.exit_code == 0, result.output
+
+
+@pytest.mark.model
+def test_an_allowed_empty_year_is_named_in_the_report_never_read_as_no_change(tmp_path):
+    config = _years_project(tmp_path, 2025, "2019, 2024", extra="allow_empty_years = true\n")
+    result = CliRunner().invoke(main, ["build", str(config), "-q"])
+    assert result.exit_code == 0, result.output
+    html = (tmp_path / "out" / "report.html").read_text(encoding="utf-8")
+    text = re.sub(r"\s+", " ", re.sub(r"<[^>]+>", " ", html))
+    assert "with publications of 2024-2025" in text, "the header names the years present, not 2019-2025"
+    assert "2019 had no publications and was not compared" in text
+    assert "2019-2025" not in text
 
 
 # --- the intake check never writes into a built report ---------------------------------------
