@@ -1,4 +1,4 @@
-"""Render: report context, charts, HTML and PDF through a theme, data exports, run manifest.
+"""Render: report context, charts, HTML and PDF through a theme, the workbook, data exports, run manifest.
 
 `render(inputs, report, output_dir)` builds everything in memory first and then
 writes each file atomically, so a failing theme leaves no half-written report.
@@ -20,7 +20,7 @@ __all__ = ["RenderInputs", "ReportContext", "ThemeError", "render"]
 
 
 def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[str, Path] | None = None) -> dict[str, Path]:
-    """Write report.html, report.pdf and data/* into `output_dir`; return label -> path written.
+    """Write report.html, report.pdf, report.xlsx and data/* into `output_dir`; return label -> path written.
 
     `report` is the `ReportConfig` (institution, title, reporting_year, theme, logo, accent_colour).
     `extra_outputs` are files the caller already wrote into the folder; the manifest lists them too.
@@ -28,6 +28,7 @@ def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[s
     from reporter.render.html import render_html
     from reporter.render.pdf import render_pdf
     from reporter.render.sections import build_context
+    from reporter.render.workbook import build_workbook
 
     if not isinstance(inputs, RenderInputs):
         raise TypeError(f"render: expected RenderInputs, got {type(inputs).__name__}")
@@ -39,6 +40,7 @@ def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[s
     html = render_html(screen, env, theme)
     pdf, _refused = render_pdf(render_html(printed, env, theme), theme, logo_path(report))
     data = _data_files(inputs)
+    workbook = build_workbook(inputs, report)
 
     written: dict[str, Path] = {}
     data_dir = output_dir / "data"
@@ -46,6 +48,7 @@ def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[s
         written[f"data/{name}"] = write_text_atomic(data_dir / name, text, root=output_dir)
     # The intake log and the manifest sit beside the report, where a reader looks first.
     written["intake-log.csv"] = write_intake_log(inputs.intake_log, output_dir)
+    written["report.xlsx"] = write_bytes_atomic(output_dir / "report.xlsx", workbook, root=output_dir)
     written["manifest.json"] = write_manifest(inputs.manifest, {**written, **(extra_outputs or {})}, output_dir,
                                               output_dir / "manifest.json")
     written["report.html"] = write_text_atomic(output_dir / "report.html", html, root=output_dir)

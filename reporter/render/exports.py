@@ -18,12 +18,12 @@ _FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
 
 # Plain signed decimals stay numbers. float() is not the test: it also takes "-inf", "-nan"
 # and "-1_0", which a spreadsheet reads as a formula naming something.
-_SIGNED_NUMBER = re.compile(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?")
+SIGNED_NUMBER = re.compile(r"[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?")
 
 
 def neutralise_cell(value: object) -> object:
     """Prefix a text cell that a spreadsheet would run as a formula with an apostrophe."""
-    if isinstance(value, str) and value.startswith(_FORMULA_START) and not _SIGNED_NUMBER.fullmatch(value):
+    if isinstance(value, str) and value.startswith(_FORMULA_START) and not SIGNED_NUMBER.fullmatch(value):
         return "'" + value
     return value
 
@@ -34,11 +34,16 @@ def _flatten(value: object) -> object:
     return value
 
 
+def safe_cell(value: object) -> object:
+    """A cell as the CSVs and the workbook write it: lists joined with "; ", formulas neutralised."""
+    return neutralise_cell(_flatten(value))
+
+
 def frame_to_csv(frame: pd.DataFrame) -> str:
     safe = frame.copy()
     for column in safe.columns:
         if safe[column].dtype == object or pd.api.types.is_string_dtype(safe[column]):
-            safe[column] = safe[column].map(lambda v: neutralise_cell(_flatten(v)))
+            safe[column] = safe[column].map(safe_cell)
     buffer = io.StringIO()
     safe.to_csv(buffer, index=False, lineterminator="\n")
     return buffer.getvalue()
