@@ -6,50 +6,12 @@ the publication explorer's counts must equal the report's own figures on the sam
 
 import json
 import re
-import shutil
-from contextlib import contextmanager
 
 import pytest
 
+from tests.e2e.browser import explorer_count, needs_chromium, offline_page, show_explorer
+
 pytestmark = pytest.mark.model
-
-CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
-needs_chromium = pytest.mark.skipif(CHROMIUM is None, reason="Chromium not installed (scripts/test installs Debian's chromium)")
-
-
-@contextmanager
-def _offline_page(report):
-    """A page on `report` in an offline browser; yields (page, problems); asserts nothing else loaded."""
-    from playwright.sync_api import sync_playwright
-
-    problems, requests = [], []
-    with sync_playwright() as p:
-        browser = p.chromium.launch(
-            executable_path=CHROMIUM,
-            args=["--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
-                  "--disable-sync", "--no-first-run", "--disable-quic"],
-        )
-        context = browser.new_context(offline=True, viewport={"width": 1280, "height": 900})
-        page = context.new_page()
-        page.on("console", lambda msg: msg.type == "error" and problems.append(f"console: {msg.text}"))
-        page.on("pageerror", lambda exc: problems.append(f"page error: {exc}"))
-        page.on("requestfailed", lambda req: problems.append(f"failed request: {req.url}"))
-        page.on("request", lambda req: requests.append(req.url))
-        page.goto(report.as_uri(), wait_until="load")
-        yield page, problems
-        browser.close()
-    assert problems == []
-    assert [u for u in requests if not u.startswith(("file://", "data:"))] == [], "nothing but the file itself loads"
-
-
-def _count(page) -> int:
-    """The explorer's live count: the first number of "N of M publications shown"."""
-    count = page.locator("#explorer-count")
-    count.scroll_into_view_if_needed()  # the explorer is laid out (and has text to read) once in view
-    text = count.inner_text()
-    found = re.match(r"([\d,]+) of ([\d,]+) publications", text)
-    assert found, f"unexpected count text {text!r}"
-    return int(found.group(1).replace(",", ""))
 
 
 def _visible_column(page, n: int) -> list[str]:
@@ -58,7 +20,7 @@ def _visible_column(page, n: int) -> list[str]:
 
 @needs_chromium
 def test_report_opens_offline_without_errors(demo_build):
-    with _offline_page(demo_build.out / "report.html") as (page, _problems):
+    with offline_page(demo_build.out / "report.html") as page:
         assert page.title().startswith("Research and the Sustainable Development Goals")
         assert page.locator("h2#at-a-glance").is_visible()
         assert page.locator("svg").count() >= 5, "charts are inline SVG"
@@ -69,15 +31,15 @@ def test_report_opens_offline_without_errors(demo_build):
 @needs_chromium
 def test_explorer_counts_equal_the_reports_figures(demo_build):
     findings = json.loads((demo_build.out / "data" / "findings.json").read_text(encoding="utf-8"))
-    with _offline_page(demo_build.out / "report.html") as (page, _problems):
-        assert _count(page) == findings["headline"]["n_publications"] == 447
+    with offline_page(demo_build.out / "report.html") as page:
+        assert explorer_count(page) == findings["headline"]["n_publications"] == 447
         page.screenshot(path=str(demo_build.out / "explorer-unfiltered.png"))
 
         page.select_option("#explorer-goal", "6")
         row = page.locator("table.goal-profile tbody tr").filter(
             has=page.locator(".goal-code", has_text=re.compile(r"^6$")))
         figure = int(row.locator("td").nth(0).inner_text().replace(",", ""))  # the "Aligned" column
-        assert _count(page) == figure, "goal 6 in the explorer lists what the goal table counts"
+        assert explorer_count(page) == figure, "goal 6 in the explorer lists what the goal table counts"
         goals = _visible_column(page, 5)
         assert len(goals) == figure and all(re.search(r"(^|\n)6 ", cell) for cell in goals)
         page.screenshot(path=str(demo_build.out / "explorer-goal-6.png"))
@@ -86,18 +48,19 @@ def test_explorer_counts_equal_the_reports_figures(demo_build):
         department = page.locator("section.section-departments table.groups tbody tr").nth(0)
         name, n = department.locator("th").inner_text(), int(department.locator("td").nth(0).inner_text())
         page.select_option("#explorer-department", label=name)
-        assert _count(page) == n, f"department {name}: the explorer against the department table's n"
+        assert explorer_count(page) == n, f"department {name}: the explorer against the department table's n"
         page.click("#explorer-reset")
         country = page.locator("section.section-international-partners table.groups").nth(1).locator("tbody tr").nth(0)
         name, n = country.locator("th").inner_text(), int(country.locator("td").nth(0).inner_text())
         page.select_option("#explorer-country", label=name)
-        assert _count(page) == n, f"partner country {name}: the explorer against the country table's n"
+        assert explorer_count(page) == n, f"partner country {name}: the explorer against the country table's n"
     assert (demo_build.out / "explorer-goal-6.png").stat().st_size > 10_000
 
 
 @needs_chromium
 def test_columns_sort_from_the_keyboard(demo_build):
-    with _offline_page(demo_build.out / "report.html") as (page, _problems):
+    with offline_page(demo_build.out / "report.html") as page:
+        show_explorer(page)
         year = page.locator("#explorer-table th[data-sort=year]")
         assert year.get_attribute("aria-sort") == "descending", "listed newest first"
         year.locator("button").focus()
@@ -119,10 +82,11 @@ def test_columns_sort_from_the_keyboard(demo_build):
 
 @needs_chromium
 def test_search_keeps_rows_whose_title_or_evidence_has_every_word(demo_build):
-    with _offline_page(demo_build.out / "report.html") as (page, _problems):
+    with offline_page(demo_build.out / "report.html") as page:
         page.fill("#explorer-search", "groundwater nitrate")
         page.wait_for_function("() => !document.getElementById('explorer-count').textContent.startsWith('447 ')")
+        show_explorer(page)
         rows = page.locator("#explorer-table tbody tr:not([hidden])")
         texts = [t.lower() for t in rows.all_inner_texts()]
-        assert 0 < _count(page) == len(texts) < 447
+        assert 0 < explorer_count(page) == len(texts) < 447
         assert all("groundwater" in t and "nitrate" in t for t in texts)
