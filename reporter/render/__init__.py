@@ -6,11 +6,10 @@ writes each file atomically, so a failing theme leaves no half-written report.
 
 from __future__ import annotations
 
-import dataclasses
 from pathlib import Path
 
 from reporter.render.atomic import write_bytes_atomic, write_text_atomic
-from reporter.render.branding import build_theme_view, logo_path
+from reporter.render.branding import logo_path
 from reporter.render.context import RenderInputs, ReportContext
 from reporter.render.exports import evidence_table, frame_to_csv, scores_table, write_intake_log
 from reporter.render.manifest import write_manifest
@@ -27,7 +26,7 @@ def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[s
     """
     from reporter.render.html import render_html
     from reporter.render.pdf import render_pdf
-    from reporter.render.sections import build_context
+    from reporter.render.sections import build_context, for_print
     from reporter.render.workbook import build_workbook
 
     if not isinstance(inputs, RenderInputs):
@@ -36,7 +35,7 @@ def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[s
     theme = load_theme(report.theme)
     env = build_environment(theme)
     screen = build_context(inputs, report, theme, medium="screen")
-    printed = dataclasses.replace(screen, theme=build_theme_view(theme, report, "print"))
+    printed = for_print(screen, theme, report)
     html = render_html(screen, env, theme)
     pdf, _refused = render_pdf(render_html(printed, env, theme), theme, logo_path(report))
     data = _data_files(inputs)

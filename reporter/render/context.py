@@ -16,6 +16,7 @@ from markupsafe import Markup
 from reporter.analyse.findings import Findings
 
 if TYPE_CHECKING:  # context_validation imports Chart from here; annotations are strings anyway
+    from reporter.render.context_explorer import ExplorerSection
     from reporter.render.context_validation import ReviewBrief, ValidationBrief, ValidationSection
 
 
@@ -314,3 +315,4 @@ class ReportContext:
     evidence: tuple[EvidenceGoal, ...] = _h("Evidence appendix, one block per goal with aligned publications")
     validation: ValidationSection | None = _h("Validation against the labelled sample, or None when none was given")
     theme: ThemeView = _h("Stylesheets and page settings of the theme")
+    explorer: ExplorerSection | None = _h("Publication explorer; report.html only (None in print)", default=None)

@@ -14,7 +14,7 @@ from typing import Sequence
 import pandas as pd
 
 from reporter.records import ENRICHED_COLUMNS, INTAKE_LOG_COLUMNS, RECORD_COLUMNS, SCORE_COLUMNS, require_columns
-from reporter.render import charts
+from reporter.render import charts, explorer
 from reporter.render import validation_section
 from reporter.render.appendix import POLICY_TEXT, build_cautions, build_evidence, build_method
 from reporter.render.branding import build_branding, build_theme_view
@@ -42,13 +42,26 @@ SECTIONS = (
 )
 #: Shown right after the method section when a labelled sample was measured.
 VALIDATION_SECTION = (validation_section.ANCHOR, validation_section.HEADING, validation_section.PARTIAL)
+#: Sections of report.html only, after the others: the PDF keeps its capped evidence appendix.
+SCREEN_SECTIONS = ((explorer.ANCHOR, explorer.HEADING, explorer.PARTIAL),)
 
 
-def _sections(has_validation: bool) -> tuple[SectionLink, ...]:
+def _sections(has_validation: bool, medium: str = "screen") -> tuple[SectionLink, ...]:
     sections = list(SECTIONS)
     if has_validation:
         sections.insert([anchor for anchor, _t, _p in SECTIONS].index("method") + 1, VALIDATION_SECTION)
+    if medium == "screen":
+        sections += SCREEN_SECTIONS
     return tuple(SectionLink(*section) for section in sections)
+
+
+def for_print(screen: ReportContext, theme: Theme, report: object) -> ReportContext:
+    """The screen context without its screen-only sections, styled for print."""
+    screen_only = {anchor for anchor, _t, _p in SCREEN_SECTIONS}
+    return dataclasses.replace(
+        screen, theme=build_theme_view(theme, report, "print"), explorer=None,
+        sections=tuple(s for s in screen.sections if s.anchor not in screen_only),
+    )
 
 
 def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: str = "screen") -> ReportContext:
@@ -101,7 +114,7 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
         years=years,
         generated_at=inputs.generated_at,
         software=f"Waymark {inputs.manifest.get('waymark_version', '')}".strip(),
-        sections=_sections(validation is not None),
+        sections=_sections(validation is not None, medium),
         summary=summary,
         goal_profile=GoalProfile(rows=profile_rows, chart=charts.draw_goal_profile(profile_rows, theme)),
         change=change,
@@ -112,6 +125,7 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
         cautions=build_cautions(inputs),
         evidence=build_evidence(inputs, goals, theme.evidence_per_goal),
         validation=validation,
+        explorer=explorer.build_explorer(inputs, goals, theme) if medium == "screen" else None,
         theme=build_theme_view(theme, report, medium),
     )
 
@@ -205,7 +219,7 @@ def _unassigned(frame: pd.DataFrame) -> pd.Series:
 
 
 def _departments(frame: pd.DataFrame, goals, theme: Theme, min_size: int) -> DepartmentSection:
-    labels = frame["department"].where(~_unassigned(frame), "no department recorded")
+    labels = frame["department"].where(~_unassigned(frame), explorer.NO_DEPARTMENT)
     rows = _group_rows(frame.assign(label=labels), "department", "label", goals)
     chart = None
     if rows:
@@ -233,7 +247,7 @@ def _partners(countries: pd.DataFrame, collaboration: pd.DataFrame, goals, theme
     large = [row for row in all_countries if row.n >= min_size]
     shown = tuple(large[:N_COUNTRIES_SHOWN])
     listed = tuple((row.label, int(row.n)) for row in all_countries if row not in shown)
-    labels = {"international": "International", "domestic": "Domestic only"}
+    labels = {"international": "International", "domestic": explorer.DOMESTIC}
     collab = _group_rows(collaboration.assign(label=collaboration["group"].map(labels)), "group", "label",
                          goals, order=["international", "domestic"])
     return PartnerSection(

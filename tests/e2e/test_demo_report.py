@@ -3,6 +3,7 @@
 import csv
 import json
 import re
+from html import unescape
 from html.parser import HTMLParser
 from pathlib import Path
 
@@ -209,3 +210,44 @@ def test_first_page_holds_cover_and_contents_and_goal_profile_follows_at_a_glanc
     first = _plain(pdf_pages[0])
     assert "Kestrel Heath University".upper() in first.upper() and "Contents" in first
     assert "At a glance" in pdf_pages[1] and "Goal profile" in pdf_pages[1]
+
+
+class _ExplorerTitles(HTMLParser):
+    """The first cell (the title) of every body row of the publication explorer's table."""
+
+    def __init__(self):
+        super().__init__(convert_charrefs=True)
+        self.titles, self._depth, self._cell = [], 0, None
+
+    def handle_starttag(self, tag, attrs):
+        if tag == "table" and dict(attrs).get("id") == "explorer-table":
+            self._depth = 1
+        elif self._depth and tag == "tbody":
+            self._depth = 2
+        elif self._depth == 2 and tag == "th":
+            self._cell = []
+
+    def handle_endtag(self, tag):
+        if tag == "th" and self._cell is not None:
+            self.titles.append("".join(self._cell).strip())
+            self._cell = None
+        elif tag == "table":
+            self._depth = 0
+
+    def handle_data(self, data):
+        if self._cell is not None:
+            self._cell.append(data)
+
+
+def test_explorer_lists_every_kept_publication_without_script_and_stays_out_of_the_pdf(demo_build, html, pdf_pages):
+    parser = _ExplorerTitles()
+    parser.feed(html)
+    log = csv.DictReader((demo_build.out / "intake-log.csv").open(encoding="utf-8"))
+    kept = sorted(r["title"] for r in log if r["status"] == "kept")
+    assert sorted(parser.titles) == kept and len(kept) == 447, "plain rows, uncapped: every kept publication"
+    full = _plain(" ".join(pdf_pages))
+    assert "Publication explorer" not in full and "Search titles and evidence" not in full
+    before = unescape(html[:html.index('id="publication-explorer"')])
+    unaligned = [t for t in parser.titles if t not in before]
+    assert unaligned, "publications aligned with no goal appear in the explorer only"
+    assert not [t for t in unaligned[:20] if _plain(t) in full], "the PDF does not grow by the explorer's rows"

@@ -7,9 +7,10 @@ import pytest
 
 from tests.unit.render.render_inputs import GOALS, make_inputs, make_report
 from reporter.render import context as ctx
+from reporter.render import context_explorer
 from reporter.render.appendix import build_evidence, doi_url
 from reporter.render.html import render_html
-from reporter.render.sections import SECTIONS, build_context
+from reporter.render.sections import SCREEN_SECTIONS, SECTIONS, build_context
 from reporter.render.themes import build_environment, load_theme
 
 
@@ -17,14 +18,14 @@ def _dataclasses_in(module):
     return [obj for obj in vars(module).values() if dataclasses.is_dataclass(obj) and obj.__module__ == module.__name__]
 
 
-@pytest.mark.parametrize("cls", _dataclasses_in(ctx), ids=lambda c: c.__name__)
+@pytest.mark.parametrize("cls", _dataclasses_in(ctx) + _dataclasses_in(context_explorer), ids=lambda c: c.__name__)
 def test_every_context_field_has_help_text(cls):
     missing = [f.name for f in dataclasses.fields(cls) if not f.metadata.get("help")]
     assert not missing, f"{cls.__name__}: fields without help text: {missing}"
 
 
 def test_context_types_are_frozen():
-    for cls in _dataclasses_in(ctx):
+    for cls in _dataclasses_in(ctx) + _dataclasses_in(context_explorer):
         assert cls.__dataclass_params__.frozen, f"{cls.__name__} must be frozen"
 
 
@@ -52,7 +53,9 @@ def test_doi_links_are_plain_doi_org_urls():
 
 def test_context_follows_section_order_and_framework_goal_order():
     context = build_context(make_inputs(), make_report(), load_theme("default"))
-    assert [s.title for s in context.sections] == [title for _a, title, _p in SECTIONS]
+    assert [s.title for s in context.sections] == [title for _a, title, _p in SECTIONS + SCREEN_SECTIONS]
+    printed = build_context(make_inputs(), make_report(), load_theme("default"), medium="print")
+    assert [s.title for s in printed.sections] == [title for _a, title, _p in SECTIONS], "screen-only sections left out"
     assert [r.goal for r in context.goal_profile.rows] == [code for code, _ in GOALS]
     assert context.summary.changes and all(c.is_change for c in context.summary.changes)
 

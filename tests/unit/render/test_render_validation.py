@@ -23,7 +23,7 @@ from reporter.render import context_validation, render
 from reporter.render.appendix import build_evidence
 from reporter.render.filters import fmt_count, fmt_score, fmt_share
 from reporter.render.html import render_html
-from reporter.render.sections import SECTIONS, build_context
+from reporter.render.sections import SCREEN_SECTIONS, SECTIONS, build_context
 from reporter.render.themes import build_environment, load_theme
 from reporter.render.validation_section import HEADING
 from reporter.score.review import apply_review, review_summary
@@ -119,7 +119,7 @@ def test_validation_section_follows_the_method_section_in_the_contents(context):
     titles = [s.title for s in context.sections]
     method = titles.index("How the figures were made")
     assert titles[method + 1] == HEADING
-    assert [t for t in titles if t != HEADING] == [title for _a, title, _p in SECTIONS]
+    assert [t for t in titles if t != HEADING] == [title for _a, title, _p in SECTIONS + SCREEN_SECTIONS]
 
 
 @pytest.mark.parametrize("theme", ["default", "compact"])
