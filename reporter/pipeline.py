@@ -13,12 +13,14 @@ from reporter.config import Config, intake_problems
 from reporter.enrich import enrich
 from reporter.errors import Problem, ReporterError
 from reporter.ingest import read_inputs
+from reporter.ingest.portfolio import funding_problems
 from reporter.records import IntakeResult
 
 
 def run_intake(config: Config) -> IntakeResult:
     """Read and enrich the inputs; the intake log accounts for every record read."""
-    intake = read_inputs(config.inputs, config.report.years, config.limits, config.base_dir)
+    intake = read_inputs(config.inputs, config.report.years, config.limits, config.base_dir,
+                         default_currency=config.funding.base_currency)
     # Duplicates are found after reading every file, so the log can name the record kept instead.
     return enrich(intake, config.report, config.departments)
 
@@ -36,6 +38,8 @@ def check_intake(config: Config, intake: IntakeResult) -> None:
     """Raise when an input yielded no record or a year in scope has no kept publication (see `intake_problems`)."""
     years = set(intake.records["year"].dropna().astype(int)) if len(intake.records) else set()
     problems = intake_problems(config, years & set(config.report.years), len(intake.records), intake.files)
+    # A portfolio's currencies are known only now; several without a conversion table stop the build here.
+    problems += funding_problems(config, intake.records, config.report.nouns.plural)
     if problems:
         raise ReporterError(problems)
     _parse_what_the_report_reads(config, intake)
