@@ -13,7 +13,7 @@ from reporter.config import Config, intake_problems
 from reporter.enrich import enrich
 from reporter.errors import Problem, ReporterError
 from reporter.ingest import read_inputs
-from reporter.ingest.portfolio import funding_problems
+from reporter.ingest.portfolio import conversion_for, funding_problems
 from reporter.records import IntakeResult
 
 
@@ -125,6 +125,7 @@ def run(config: Config, show_progress: bool = True, keep_sentences: bool = False
         config.report.reporting_year, config.report.comparison_years,
         scores.thresholds, scores.policy,
         general_mentions=scores.general_mentions.set_index("record_id")["n_general_mentions"],
+        conversion=conversion_for(config, intake.records), funding=config.funding, noun=config.report.nouns,
     )
     findings = _with_human_judgement(config, intake, scores, findings, overrides)
     framework_info = parts.framework_info()
@@ -242,6 +243,10 @@ def _manifest(config, intake, scores, framework_info, model_info, score_settings
         "policy": score_settings["policy"],
         "text_fields": score_settings["text_fields"],
     })
+    if findings.funding is not None:
+        # The rates behind every funding figure: which table, and its checksum, so a rerun can tell.
+        keys = ("counting", "group_counting", "base_currency", "conversion_table", "conversion_table_sha256")
+        manifest["funding"] = {key: findings.funding.meta[key] for key in keys}
     counts = intake.log["status"].value_counts().to_dict()
     manifest["config"] = config.model_dump(mode="json", exclude={"config_path"})
     manifest["rows"] = {
