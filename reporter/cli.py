@@ -114,10 +114,11 @@ def build(config_path: Path, out_dir: Path | None, sentences: bool, review_works
         _fail(error)
     click.echo(format_intake_summary(result.intake))
     stats = result.scores.stats
+    noun = config.report.nouns.plural
     click.echo(
-        f"Scored {stats['n_records']} publications ({stats['n_sentences']} sentences, "
+        f"Scored {stats['n_records']} {noun} ({stats['n_sentences']} sentences, "
         f"{stats['n_encoded']} embedded, {stats['n_cache_hits']} from the cache; "
-        f"{stats.get('n_records_reused', 0)} publications' results reused from an earlier run)."
+        f"{stats.get('n_records_reused', 0)} {noun}' results reused from an earlier run)."
     )
     click.echo(f"Written to {config.output_dir}:")
     for label, path in result.written.items():

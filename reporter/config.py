@@ -12,12 +12,15 @@ import os
 import re
 import tomllib
 from pathlib import Path
-from typing import Annotated, Any, Literal
+from typing import Annotated, Any, Callable, Literal
 
 from pydantic import BaseModel, ConfigDict, Field, ValidationError, field_validator
 
 from reporter.errors import ConfigError, Problem
 from reporter.config_files import cache_problems, format_option_problems, output_folder_problems
+from reporter.config_funding import (
+    CurrencyCode, FundingConfig, RecordNoun, RecordNounValue, conversion_table_problems, record_noun,
+)
 
 CONFIG_FILE_NAME = "waymark.toml"
 BUILTIN_FRAMEWORK = "un-sdg-2030"
@@ -26,7 +29,7 @@ BUILTIN_MODEL = "all-MiniLM-L6-v2"
 #: Fields a CSV column may be mapped to (see `InputConfig.columns`).
 CSV_FIELDS = (
     "id", "title", "abstract", "keywords", "year", "doi", "authors", "affiliations",
-    "departments", "orcids", "doc_type", "venue", "language", "url", "issn",
+    "departments", "orcids", "doc_type", "venue", "language", "url", "issn", "amount", "currency",
 )
 
 
@@ -60,6 +63,13 @@ class ReportConfig(_Section):
     logo: Path | None = Field(default=None, description="Local image file shown on the cover (no URLs).")
     accent_colour: str = Field(
         default="#1f5f8b", description="Accent colour for headings and rules, as #rrggbb."
+    )
+    record_noun: RecordNounValue = Field(
+        default="publications",
+        description=(
+            'What the records are called in report text, table headers and exports: "publications", "awards", '
+            '"projects", or a [singular, plural] pair such as ["grant", "grants"].'
+        ),
     )
 
     @field_validator("institution", "title")
@@ -107,6 +117,11 @@ class ReportConfig(_Section):
         """All years in scope, oldest first."""
         return tuple(sorted({*self.comparison_years, self.reporting_year}))
 
+    @property
+    def nouns(self) -> RecordNoun:
+        """What one record and several are called ("award", "awards")."""
+        return record_noun(self.record_noun)
+
 
 class InputConfig(_Section):
     path: Path = Field(description="Publication export to read (BibTeX, RIS or CSV).")
@@ -127,6 +142,13 @@ class InputConfig(_Section):
     allow_empty: bool = Field(
         default=False,
         description="Accept this input yielding no records (an export that may be empty); otherwise that stops intake and build.",
+    )
+    currency: CurrencyCode = Field(
+        default=None,
+        description=(
+            "ISO 4217 code of the amounts in this input when a record names none (no currency column or field), "
+            "such as \"EUR\"."
+        ),
     )
 
     @field_validator("columns")
@@ -269,6 +291,10 @@ class Config(_Section):
         default_factory=ValidationConfig, description="Labelled sample and human review."
     )
     limits: LimitsConfig = Field(default_factory=LimitsConfig, description="Safety limits for inputs.")
+    funding: FundingConfig = Field(
+        default_factory=FundingConfig,
+        description="Award amounts of a portfolio: counting across goals, currencies (used when records have amounts).",
+    )
     # Not from the file: where it was read, so relative paths and messages can name it.
     config_path: Path = Field(default=Path(CONFIG_FILE_NAME), exclude=True, description="(set by the loader)")
 
@@ -307,7 +333,11 @@ def load_config(path: Path | str, output: Path | None = None) -> Config:
     try:
         config = Config.model_validate({**data, "config_path": path.resolve()})
     except ValidationError as exc:
-        problems.extend(_problem_from_error(path, lines, err) for err in exc.errors())
+        errors = exc.errors()
+        # A table of [[inputs]] that fails validation also leaves the list "too short"; its own problem says more.
+        inner = {err["loc"][0] for err in errors if len(err["loc"]) > 1 and isinstance(err["loc"][1], int)}
+        errors = [err for err in errors if not (err["type"] == "too_short" and err["loc"] and err["loc"][0] in inner)]
+        problems.extend(_problem_from_error(path, lines, err) for err in errors)
         config = None
     if config is not None:
         config = _resolve_paths(config, path, lines, problems, output)
@@ -319,7 +349,7 @@ def load_config(path: Path | str, output: Path | None = None) -> Config:
 #: Config keys naming files that must exist (dotted; "inputs[].path" means every input).
 _FILE_KEYS = (
     "inputs[].path", "report.logo", "departments.staff_map", "score.thresholds_file",
-    "validation.labelled_sample", "validation.review_file",
+    "validation.labelled_sample", "validation.review_file", "funding.conversion_table",
 )
 
 
@@ -401,6 +431,9 @@ def _resolve_paths(
             "review_file": resolve(config.validation.review_file, "validation.review_file", True),
         }
     )
+    funding = config.funding.model_copy(
+        update={"conversion_table": resolve(config.funding.conversion_table, "funding.conversion_table", True)}
+    )
 
     def problem(key: str, message: str) -> Problem:
         return Problem(path, _line_of(lines, key), key, message)
@@ -411,10 +444,12 @@ def _resolve_paths(
     problems.extend(format_option_problems(inputs, formats, problem))
     if score.cache is not None and config.score.use_cache:
         problems.extend(cache_problems(score.cache, problem))
+    problems.extend(conversion_table_problems(funding, problem))
     read_files = [(f"inputs[{i}].path", item.path) for i, item in enumerate(inputs)]
     read_files += [("departments.staff_map", departments.staff_map), ("score.thresholds_file", score.thresholds_file),
                    ("score.cache", score.cache), ("validation.labelled_sample", validation.labelled_sample),
-                   ("validation.review_file", validation.review_file), ("report.logo", report.logo)]
+                   ("validation.review_file", validation.review_file), ("report.logo", report.logo),
+                   ("funding.conversion_table", funding.conversion_table)]
     problems.extend(output_folder_problems(out_dir, "--out" if output is not None else "report.output", read_files, problem))
     for year in config.report.comparison_years:
         if year >= config.report.reporting_year:
@@ -433,8 +468,18 @@ def _resolve_paths(
             "departments": departments,
             "score": score,
             "validation": validation,
+            "funding": funding,
         }
     )
+
+
+def problem_at(config: Config) -> Callable[[str, str], Problem]:
+    """`problem(key, message)` -> a Problem at the key's line of the config file (for checks after loading)."""
+    try:
+        lines = _key_lines(config.config_path.read_text(encoding="utf-8"))
+    except (OSError, UnicodeDecodeError):
+        lines = {}
+    return lambda key, message: Problem(config.config_path, _line_of(lines, key), key, message)
 
 
 def intake_problems(config: Config, years_present: set[int], n_kept: int,
@@ -457,13 +502,14 @@ def intake_problems(config: Config, years_present: set[int], n_kept: int,
     if report.allow_empty_years:
         return problems
     found = ", ".join(str(y) for y in sorted(years_present)) or "none"
+    nouns = report.nouns
     fix = "remove it, add the export that holds it, or set report.allow_empty_years = true"
     for key, years in (("report.reporting_year", (report.reporting_year,)),
                        ("report.comparison_years", report.comparison_years)):
         for year in years:
             if year not in years_present:
                 problems.append(Problem(path, _line_of(lines, key), key, (
-                    f"no publication from {year} among the {n_kept} kept (years in scope with publications: "
+                    f"no {nouns.singular} from {year} among the {n_kept} kept (years in scope with {nouns.plural}: "
                     f"{found}); {fix}"
                 )))
     return problems

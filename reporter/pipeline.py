@@ -13,12 +13,14 @@ from reporter.config import Config, intake_problems
 from reporter.enrich import enrich
 from reporter.errors import Problem, ReporterError
 from reporter.ingest import read_inputs
+from reporter.ingest.portfolio import conversion_for, funding_problems
 from reporter.records import IntakeResult
 
 
 def run_intake(config: Config) -> IntakeResult:
     """Read and enrich the inputs; the intake log accounts for every record read."""
-    intake = read_inputs(config.inputs, config.report.years, config.limits, config.base_dir)
+    intake = read_inputs(config.inputs, config.report.years, config.limits, config.base_dir,
+                         default_currency=config.funding.base_currency)
     # Duplicates are found after reading every file, so the log can name the record kept instead.
     return enrich(intake, config.report, config.departments)
 
@@ -36,6 +38,8 @@ def check_intake(config: Config, intake: IntakeResult) -> None:
     """Raise when an input yielded no record or a year in scope has no kept publication (see `intake_problems`)."""
     years = set(intake.records["year"].dropna().astype(int)) if len(intake.records) else set()
     problems = intake_problems(config, years & set(config.report.years), len(intake.records), intake.files)
+    # A portfolio's currencies are known only now; several without a conversion table stop the build here.
+    problems += funding_problems(config, intake.records, config.report.nouns.plural)
     if problems:
         raise ReporterError(problems)
     _parse_what_the_report_reads(config, intake)
@@ -121,6 +125,7 @@ def run(config: Config, show_progress: bool = True, keep_sentences: bool = False
         config.report.reporting_year, config.report.comparison_years,
         scores.thresholds, scores.policy,
         general_mentions=scores.general_mentions.set_index("record_id")["n_general_mentions"],
+        conversion=conversion_for(config, intake.records), funding=config.funding, noun=config.report.nouns,
     )
     findings = _with_human_judgement(config, intake, scores, findings, overrides)
     framework_info = parts.framework_info()
@@ -238,6 +243,10 @@ def _manifest(config, intake, scores, framework_info, model_info, score_settings
         "policy": score_settings["policy"],
         "text_fields": score_settings["text_fields"],
     })
+    if findings.funding is not None:
+        # The rates behind every funding figure: which table, and its checksum, so a rerun can tell.
+        keys = ("counting", "group_counting", "base_currency", "conversion_table", "conversion_table_sha256")
+        manifest["funding"] = {key: findings.funding.meta[key] for key in keys}
     counts = intake.log["status"].value_counts().to_dict()
     manifest["config"] = config.model_dump(mode="json", exclude={"config_path"})
     manifest["rows"] = {

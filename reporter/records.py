@@ -15,7 +15,10 @@ import pandas as pd
 
 #: Canonical field names a reader may fill in `RawEntry.fields`. Text fields are str;
 #: list fields are tuples of str. Unknown source fields are dropped by the reader.
-TEXT_FIELDS = ("title", "abstract", "year", "doi", "doc_type", "venue", "language", "url", "issn")
+TEXT_FIELDS = (
+    "title", "abstract", "year", "doi", "doc_type", "venue", "language", "url", "issn",
+    "amount", "currency",  # an award's funding as written in the export, and its ISO 4217 code
+)
 LIST_FIELDS = ("keywords", "authors", "affiliations", "departments", "orcids")
 
 
@@ -79,6 +82,16 @@ RECORD_COLUMNS = (
     "venue",
     "language",  # ISO 639-1 code from the source or detection; "" when unknown
     "has_abstract",  # bool
+)
+
+#: Columns intake adds to every record table (after RECORD_COLUMNS). A run is a portfolio when any
+#: record read carries an amount or a currency; then each kept record without a usable amount has
+#: `amount_note` saying why and a "not_in_funding:<why>" flag in the intake log. Such a record is still
+#: counted and scored like any other, but left out of the funding figures.
+FUNDING_COLUMNS = (
+    "amount",  # float > 0 in the record's own currency; NaN when missing or unusable
+    "currency",  # ISO 4217 code ("" when none is known)
+    "amount_note",  # why the record is not in the funding figures; "" when it is, or when the run has no amounts
 )
 
 #: Columns `enrich.enrich` adds to the record table.

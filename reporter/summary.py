@@ -6,6 +6,7 @@ import re
 
 import pandas as pd
 
+from reporter.ingest.amounts import NOT_IN_FUNDING, note_kind
 from reporter.records import INTAKE_LOG_COLUMNS, IntakeResult, require_columns
 
 _COUNT_HEADERS = ("read", "kept", "merged", "set aside")
@@ -36,9 +37,20 @@ def format_intake_summary(result: IntakeResult) -> str:
             counts = pd.Series(reasons).value_counts(sort=False).sort_index()
             counts = counts.sort_values(ascending=False, kind="stable")  # most frequent first, ties by name
             parts.append(_table((f"{title}: reason", "records"), [(r, str(n)) for r, n in counts.items()]))
+    funding = _funding_reasons(log)
+    if funding:
+        counts = pd.Series(funding).value_counts().sort_index().sort_values(ascending=False, kind="stable")
+        parts.append(_table(("kept, not in funding figures: reason", "records"), [(r, str(n)) for r, n in counts.items()]))
     if result.warnings:
         parts.append("warnings:\n" + "\n".join(f"  {w}" for w in result.warnings))
     return "\n\n".join(parts) + "\n"
+
+
+def _funding_reasons(log: pd.DataFrame) -> list[str]:
+    """The kind of each "not_in_funding:<why>" flag on a kept record (amount missing, zero, negative...)."""
+    prefix = f"{NOT_IN_FUNDING}:"
+    kept = log.loc[log["status"] == "kept", "flags"].astype(str)
+    return [note_kind(flag[len(prefix):]) for flags in kept for flag in flags.split(";") if flag.startswith(prefix)]
 
 
 def generalise_reason(reason: str) -> str:

@@ -16,6 +16,7 @@ from reporter.analyse.cooccurrence import cooccurrence_table
 from reporter.analyse.decisions import check_policy, prepare_decisions
 from reporter.analyse.export import findings_tables, findings_to_json
 from reporter.analyse.findings import Findings
+from reporter.analyse.funding_summary import funding_findings
 from reporter.analyse.sensitivity import sensitivity_table
 from reporter.analyse.shares import (
     collaboration_shares,
@@ -27,6 +28,8 @@ from reporter.analyse.shares import (
 from reporter.analyse.summary import coverage_summary, headline_summary
 from reporter.analyse.suppress import count_too_small_groups
 from reporter.config import AnalysisConfig
+from reporter.config_funding import FundingConfig, RecordNoun
+from reporter.currency import ConversionTable
 from reporter.records import require_columns
 
 __all__ = ["Findings", "analyse", "check_comparable", "findings_tables", "findings_to_json"]
@@ -60,6 +63,9 @@ def analyse(
     thresholds: dict[str, float],
     policy: str,
     general_mentions: Mapping[str, int] | pd.Series | pd.DataFrame | None = None,
+    conversion: ConversionTable | None = None,
+    funding: FundingConfig | None = None,
+    noun: RecordNoun | None = None,
 ) -> Findings:
     """Every figure of the report, computed once from the records and their scores.
 
@@ -67,7 +73,8 @@ def analyse(
     every table except by_year and changes pools all those years (meta["scope"]).
     `general_mentions` (record_id -> count of general goal-framework mentions, or the
     score stage's record_id / n_general_mentions table) is optional; without it
-    headline["n_general_mentions"] is None.
+    headline["n_general_mentions"] is None. With a `conversion` table (the records are awards with
+    amounts; FUNDING_COLUMNS) the findings also carry the funding figures, counted by `funding`.
     """
     require_columns(records, _RECORD_NEEDS, "analyse: records")
     require_columns(scores, _SCORE_NEEDS, "analyse: scores")
@@ -127,7 +134,14 @@ def analyse(
         "bootstrap_resamples": cfg.bootstrap_resamples,
         "methods": dict(METHODS),
     }
+    funding_part = None
+    if conversion is not None:
+        funding_part = funding_findings(
+            scored, decisions, goals, conversion, funding or FundingConfig(), cfg, reporting_year,
+            tuple(comparison_years), noun or RecordNoun("award", "awards"),
+        )
     return Findings(
+        funding=funding_part,
         meta=meta,
         headline=headline_summary(decisions, codes, cfg.confidence, general_mentions, n_too_small),
         goals=goal_summary(decisions, goals, cfg.confidence, rng, cfg.bootstrap_resamples),

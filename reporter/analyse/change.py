@@ -48,7 +48,8 @@ def baseline_label(years: tuple[int, ...]) -> str:
     return "mean " + year_ranges(years)
 
 
-def _baselines(comparison_years: tuple[int, ...]) -> list[tuple[str, tuple[int, ...]]]:
+def baselines(comparison_years: tuple[int, ...]) -> list[tuple[str, tuple[int, ...]]]:
+    """(kind, years) per baseline: each comparison year, then ("mean", all of them) when there are two or more."""
     singles = [("year", (year,)) for year in sorted(comparison_years)]
     # With one comparison year the pooled baseline would repeat it.
     pooled = [("mean", tuple(sorted(comparison_years)))] if len(comparison_years) > 1 else []
@@ -74,7 +75,7 @@ def year_changes(
     """
     counts = by_year.set_index(["year", "goal"])[["n", "n_aligned", "n_publications"]]
     rows = []
-    for kind, years in _baselines(tuple(comparison_years)):
+    for kind, years in baselines(tuple(comparison_years)):
         block = []
         for goal in goal_codes:
             now = counts.loc[(reporting_year, goal)]
@@ -85,15 +86,23 @@ def year_changes(
         rows.append(frame)
     if not rows:
         return pd.DataFrame({c: pd.Series(dtype=_dtype(c)) for c in CHANGE_COLUMNS})
-    table = pd.concat(rows, ignore_index=True)
+    table = call_changes(pd.concat(rows, ignore_index=True), fdr)
+    return table.loc[:, list(CHANGE_COLUMNS)]
+
+
+def call_changes(table: pd.DataFrame, fdr: float) -> pd.DataFrame:
+    """Add is_change and verdict to a table of diff, diff_low, diff_high, p_adjusted and _too_small.
+
+    A change is called only when the adjusted p-value is below `fdr` and the interval excludes 0.
+    """
     excludes_zero = (table["diff_low"] > 0) | (table["diff_high"] < 0)
-    table["is_change"] = (table["p_adjusted"] < fdr) & excludes_zero & ~table["_too_small"]
-    table["verdict"] = np.select(
-        [table["_too_small"], table["is_change"] & (table["diff"] > 0), table["is_change"] & (table["diff"] < 0)],
+    is_change = (table["p_adjusted"] < fdr) & excludes_zero & ~table["_too_small"]
+    verdict = np.select(
+        [table["_too_small"], is_change & (table["diff"] > 0), is_change & (table["diff"] < 0)],
         ["too small", "increase", "decrease"],
         default="no clear change",
     )
-    return table.loc[:, list(CHANGE_COLUMNS)]
+    return table.assign(is_change=is_change, verdict=verdict)
 
 
 def _compare(goal, kind, years, reporting_year, before, now, confidence, min_group_size) -> dict:

@@ -17,6 +17,10 @@ from reporter.analyse.findings import Findings
 TABLE_NAMES = (
     "goals", "by_year", "changes", "by_department", "by_country", "collaboration", "sensitivity", "cooccurrence",
 )
+#: Funding tables, present only for a portfolio; exported as findings-funding-<name>.csv.
+FUNDING_TABLE_NAMES = (
+    "goals", "by_year", "changes", "by_department", "by_country", "currencies", "left_out",
+)
 FLOAT_PLACES = 6
 
 
@@ -29,6 +33,13 @@ def findings_to_json(findings: Findings) -> str:
         "tables": {name: _rows(getattr(findings, name)) for name in TABLE_NAMES},
         "extra": _plain(findings.extra),
     }
+    if findings.funding is not None:  # absent, not null, for publications: their JSON stays as it was
+        funding = findings.funding
+        document["funding"] = {
+            "meta": _plain(funding.meta),
+            "headline": _plain(funding.headline),
+            "tables": {name: _rows(getattr(funding, name)) for name in FUNDING_TABLE_NAMES},
+        }
     return json.dumps(document, ensure_ascii=False, indent=2, allow_nan=False) + "\n"
 
 
@@ -40,6 +51,9 @@ def findings_tables(findings: Findings) -> dict[str, pd.DataFrame]:
     for name, value in sorted(findings.extra.items()):
         if isinstance(value, pd.DataFrame):
             tables[f"extra_{name}"] = value.copy()
+    if findings.funding is not None:
+        tables["funding_headline"] = _key_values(findings.funding.headline)
+        tables.update({f"funding_{name}": getattr(findings.funding, name).copy() for name in FUNDING_TABLE_NAMES})
     return tables
 
 

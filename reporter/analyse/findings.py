@@ -15,6 +15,21 @@ import pandas as pd
 
 
 @dataclass(frozen=True)
+class FundingFindings:
+    """Funding figures of a portfolio (records with award amounts); FINDINGS_SCHEMA.md, "funding"."""
+
+    meta: dict  # counting, group_counting, base_currency, conversion_table, conversion_table_sha256, ...
+    headline: dict  # n_awards, n_in_funding, n_not_in_funding, amount_total, share_aligned_any (+ _low/_high), ...
+    goals: pd.DataFrame  # goal, title, n_awards, amount, share, share_low, share_high, share_full, share_fractional
+    by_year: pd.DataFrame  # year, goal, n_awards, amount_total, amount, share, share_low, share_high, is_too_small
+    changes: pd.DataFrame  # goal, baseline, ..., share_baseline, share, diff, diff_low, diff_high, p_value, verdict
+    by_department: pd.DataFrame  # department, is_unassigned, goal, n_awards, amount_total, amount, share, ...
+    by_country: pd.DataFrame  # country, country_name, goal, n_awards, amount_total, amount, share, ...
+    currencies: pd.DataFrame  # currency, n_awards, amount, rate, amount_base
+    left_out: pd.DataFrame  # reason, n_awards: awards analysed but left out of the funding figures
+
+
+@dataclass(frozen=True)
 class Findings:
     meta: dict  # counting, confidence, min_group_size, fdr, threshold, thresholds (goal->t), policy,
     #             reporting_year, comparison_years, years, sensitivity_step, seed, bootstrap_resamples
@@ -37,6 +52,7 @@ class Findings:
     coverage: dict  # n_records, n_with_abstract, share_with_abstract, n_with_department,
     #                 share_with_department, n_with_country, share_with_country, n_non_english
     extra: dict = field(default_factory=dict)  # later sections (validation, corrected shares, overrides)
+    funding: FundingFindings | None = None  # only when the records have award amounts
     # Added by analyse (see FINDINGS_SCHEMA.md): share tables also carry n_publications, n_effective,
     # n_explicit, n_content_only; by_department/by_country carry is_unassigned; changes carry
     # baseline_kind, n_baseline, n_aligned_baseline, n, n_aligned; sensitivity carries n;

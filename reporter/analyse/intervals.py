@@ -143,18 +143,55 @@ def bootstrap_mean_interval(
     return low, high
 
 
+def bootstrap_ratio_interval(
+    numerators,
+    denominator,
+    rng: np.random.Generator,
+    n_resamples: int,
+    confidence: float = 0.95,
+    batch: int | None = None,
+):
+    """Percentile bootstrap interval for ratios of sums, sum(numerator) / sum(denominator); returns (low, high).
+
+    `numerators` is 2-D, one series per row (e.g. one goal per row), `denominator` 1-D, with one column
+    per unit (award) resampled: the same indices serve every row, drawn as in `bootstrap_mean_interval`,
+    so the interval equals scipy.stats.bootstrap(method="percentile") of the ratio on the same draws.
+    A ratio of sums is a ratio of means, so the resampled means give it. No units gives nan bounds.
+    """
+    top = np.asarray(numerators, dtype=float)
+    bottom = np.asarray(denominator, dtype=float)
+    if top.ndim != 2 or bottom.ndim != 1 or top.shape[1] != bottom.shape[0]:
+        raise ValueError(f"expected numerators (rows, n) and a denominator (n,), got {top.shape} and {bottom.shape}")
+    if bottom.shape[0] == 0:
+        return np.full(top.shape[0], np.nan), np.full(top.shape[0], np.nan)
+    means = _resample_means(np.vstack([top, bottom]), rng, n_resamples, batch)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratios = means[:, :-1] / means[:, -1:]
+    alpha = (1 - confidence) / 2
+    low, high = np.quantile(ratios, [alpha, 1 - alpha], axis=0)
+    return low, high
+
+
+def batch_sizes(n_resamples: int, n: int, batch: int | None) -> list[int]:
+    """Resamples drawn per call: `batch`, or as many as keep an index matrix near 32 MB."""
+    if batch is None:
+        batch = max(1, min(n_resamples, _MAX_BATCH_CELLS // max(n, 1)))
+    return [min(batch, n_resamples - done) for done in range(0, n_resamples, batch)]
+
+
+def resample_counts(n: int, rows: int, rng: np.random.Generator) -> np.ndarray:
+    """How often each of n units is drawn in each of `rows` resamples, from `rng.integers(0, n, (rows, n))`
+    (scipy.stats.bootstrap's draw); times a data matrix it gives the resampled sums."""
+    index = rng.integers(0, n, (rows, n))
+    offsets = (np.arange(rows)[:, None] * n + index).ravel()
+    return np.bincount(offsets, minlength=rows * n).reshape(rows, n)
+
+
 def _resample_means(series: np.ndarray, rng: np.random.Generator, n_resamples: int, batch: int | None) -> np.ndarray:
     n = series.shape[1]
-    if batch is None:
-        batch = max(1, min(n_resamples, _MAX_BATCH_CELLS // n))
     means = np.empty((n_resamples, series.shape[0]))
     done = 0
-    while done < n_resamples:
-        rows = min(batch, n_resamples - done)
-        index = rng.integers(0, n, (rows, n))
-        # How often each observation is drawn in each resample; times the data gives the means.
-        offsets = (np.arange(rows)[:, None] * n + index).ravel()
-        counts = np.bincount(offsets, minlength=rows * n).reshape(rows, n)
-        means[done : done + rows] = counts @ series.T / n
+    for rows in batch_sizes(n_resamples, n, batch):
+        means[done : done + rows] = resample_counts(n, rows, rng) @ series.T / n
         done += rows
     return means

@@ -3,9 +3,11 @@
 Rule: two records are the same publication when they share a normalised DOI, or, when
 their DOIs do not conflict (at most one distinct DOI among them), the same normalised title
 and the same year. Two different DOIs are never merged: a preprint and its journal
-version, or a paper and its data set, are separate objects with separate DOIs.
+version, or a paper and its data set, are separate objects with separate DOIs. Nor are two
+different award amounts: in a portfolio, awards that share a title ("Doctoral studentship")
+and a year but not their amount are separate awards.
 
-Which record is kept: the richest one -- it has an abstract, then it has more fields
+Which record is kept: the richest one -- it has a usable award amount, then an abstract, then it has more fields
 filled, then more affiliations; ties go to the record read first. The others are folded
 into it: an empty text field (abstract, DOI, venue, ...) takes the first non-empty value
 among them (richest first), empty authors take theirs, and keywords, affiliations,
@@ -62,7 +64,9 @@ def dedupe(records: pd.DataFrame) -> tuple[pd.DataFrame, dict[str, tuple[str, st
 def _groups(rows: list[dict]) -> list[list[int]]:
     """Union-find over record positions; a union is refused when it would join two DOIs."""
     parent = list(range(len(rows)))
+    # What must not conflict within a group: at most one DOI, at most one (amount, currency).
     dois = [{row["doi"]} if row["doi"] else set() for row in rows]
+    amounts = [{_amount_key(row)} if _amount_key(row) else set() for row in rows]
 
     def find(i: int) -> int:
         while parent[i] != i:
@@ -74,11 +78,12 @@ def _groups(rows: list[dict]) -> list[list[int]]:
         ra, rb = find(a), find(b)
         if ra == rb:
             return True
-        if len(dois[ra] | dois[rb]) > 1:
+        if len(dois[ra] | dois[rb]) > 1 or len(amounts[ra] | amounts[rb]) > 1:
             return False
         low, high = min(ra, rb), max(ra, rb)
         parent[high] = low
         dois[low] |= dois[high]
+        amounts[low] |= amounts[high]
         return True
 
     by_doi: dict[str, list[int]] = defaultdict(list)
@@ -114,6 +119,14 @@ def _basis(dropped: dict, kept: dict) -> str:
     return "same DOI" if dropped["doi"] else "same title and year"
 
 
+def _amount_key(row: dict) -> tuple[float, str] | None:
+    """An award's usable amount and currency; None for a publication or an award without one."""
+    amount = row.get("amount")
+    if amount is None or pd.isna(amount):
+        return None
+    return float(amount), str(row.get("currency", ""))
+
+
 def _title_key(row: dict) -> tuple[str, int] | None:
     title = normalise_title(row["title"])
     year = row["year"]
@@ -130,8 +143,10 @@ def _filled(value: object) -> bool:
     return value is not None and not pd.isna(value)
 
 
-def _richness(row: dict) -> tuple[bool, int, int]:
+def _richness(row: dict) -> tuple[bool, bool, int, int]:
+    # An award with a usable amount first: its amount is what the funding figures count.
     return (
+        _amount_key(row) is not None,
         _filled(row["abstract"]),
         sum(_filled(row[c]) for c in _COUNTED),
         len(row["affiliations"] or ()),

@@ -241,6 +241,9 @@ def _values(entry: Entry, verbatim: dict[str, str]) -> dict[str, object]:
         "language": first(_LANGUAGE_FIELDS),
         "url": verbatim.get("url"),
         "issn": first(("issn",)),
+        # An award's funding: no BibTeX standard field, so the plain names that exports of awards use.
+        "amount": first(("amount",)),
+        "currency": first(("currency",)),
     }
 
 

@@ -39,6 +39,9 @@ _GUESSES: dict[str, tuple[str, ...]] = {
     "language": ("language", "languageoforiginaldocument", "lang"),
     "url": ("url", "link"),
     "issn": ("issn",),
+    # Awards of a portfolio (grant and finance system exports).
+    "amount": ("amount", "awardamount", "awardvalue", "fundingamount", "grantamount", "totalaward", "awarded"),
+    "currency": ("currency", "currencycode", "awardcurrency"),
 }
 
 

@@ -8,16 +8,20 @@ from __future__ import annotations
 
 import codecs
 import dataclasses
+import math
 import re
-from collections.abc import Iterable
+from collections.abc import Iterable, Mapping
 from pathlib import Path, PurePosixPath
 
 import pandas as pd
 
 from reporter.config import InputConfig, LimitsConfig
 from reporter.errors import InputError, Problem
+from reporter.ingest.amounts import NOT_IN_FUNDING, read_amount
 from reporter.ingest.formats import READERS, guess_format, why_nothing_read
-from reporter.records import INTAKE_LOG_COLUMNS, RECORD_COLUMNS, IntakeResult, RawEntry, ReadResult, Rejected
+from reporter.records import (
+    FUNDING_COLUMNS, INTAKE_LOG_COLUMNS, RECORD_COLUMNS, IntakeResult, RawEntry, ReadResult, Rejected,
+)
 
 _YEAR_RUN = re.compile(r"(?<!\d)\d{4}")
 MIN_YEAR, MAX_YEAR = 1900, 2100  # outside this a four-digit run is a page or volume number
@@ -26,13 +30,19 @@ _LIST_COLUMNS = ("keywords", "authors", "affiliations", "departments", "orcids")
 
 
 def read_inputs(
-    inputs: tuple[InputConfig, ...], years: tuple[int, ...], limits: LimitsConfig, base_dir: Path
+    inputs: tuple[InputConfig, ...], years: tuple[int, ...], limits: LimitsConfig, base_dir: Path,
+    default_currency: str | None = None,
 ) -> IntakeResult:
-    """Read every configured input and account for each record read."""
+    """Read every configured input and account for each record read.
+
+    An amount without a currency of its own is in its input's `currency`, else in `default_currency`
+    (funding.base_currency).
+    """
     results = tuple(
         _read_input(index, cfg, limits.max_field_length, base_dir) for index, cfg in enumerate(inputs)
     )
-    return build_intake(results, years)
+    currencies = {result.source_file: cfg.currency or default_currency or "" for result, cfg in zip(results, inputs)}
+    return build_intake(results, years, currencies)
 
 
 def _read_input(index: int, cfg: InputConfig, max_field_length: int, base_dir: Path) -> ReadResult:
@@ -89,8 +99,18 @@ def parse_year(text: object) -> int | None:
     return None
 
 
-def build_intake(results: Iterable[ReadResult], years: tuple[int, ...]) -> IntakeResult:
-    """Records and intake log from reader results; record ids are unique across all results."""
+def build_intake(
+    results: Iterable[ReadResult], years: tuple[int, ...], currencies: Mapping[str, str] | None = None
+) -> IntakeResult:
+    """Records and intake log from reader results; record ids are unique across all results.
+
+    `currencies` maps a source file to the currency of its amounts that name none.
+    """
+    results = tuple(results)
+    # A portfolio is a run in which any record carries an amount; then every kept record without a
+    # usable one is flagged, since a blank cell and a missing column look the same once read.
+    is_portfolio = any("amount" in entry.fields for result in results for entry in result.entries)
+    currencies = currencies or {}
     taken: set[str] = set()
     log_rows: list[dict[str, object]] = []
     record_rows: list[dict[str, object]] = []
@@ -114,13 +134,14 @@ def build_intake(results: Iterable[ReadResult], years: tuple[int, ...]) -> Intak
             year = parse_year(item.fields.get("year"))
             reason = _set_aside_reason(title, year, years)
             status = "set_aside" if reason else "kept"
-            flags = "" if reason else ";".join(_flags(item))
+            funding = _funding_values(item, currencies.get(result.source_file, ""), is_portfolio)
+            flags = "" if reason else ";".join(_flags(item, funding[2]))
             log_rows.append(
                 _log_row(record_id, item, item.format, native_id=item.native_id, title=title, year=year,
                          status=status, reason=reason, flags=flags)
             )
             if year is not None and not reason:
-                record_rows.append(_record_row(record_id, item, year))
+                record_rows.append(_record_row(record_id, item, year, funding))
     files = tuple((r.source_file, r.n_read, r.warnings[-1] if r.n_read == 0 and r.warnings else "") for r in results)
     return IntakeResult(records=_records_frame(record_rows), log=_log_frame(log_rows), warnings=tuple(warnings),
                         files=files)
@@ -136,11 +157,20 @@ def _set_aside_reason(title: str, year: int | None, years: tuple[int, ...]) -> s
     return ""
 
 
-def _flags(entry: RawEntry) -> list[str]:
+def _flags(entry: RawEntry, funding_note: str) -> list[str]:
     flags = [] if entry.fields.get("abstract") else ["no_abstract"]
     flags.extend(f"cut:{name}" for name in entry.cut_fields)
     flags.extend(entry.notes)
+    if funding_note:
+        flags.append(f"{NOT_IN_FUNDING}:{funding_note}")
     return flags
+
+
+def _funding_values(entry: RawEntry, default_currency: str, is_portfolio: bool) -> tuple[float, str, str]:
+    """(amount, currency, why not in the funding figures); outside a portfolio no record needs an amount."""
+    if not is_portfolio:
+        return math.nan, "", ""
+    return read_amount(entry.fields.get("amount"), entry.fields.get("currency"), default_currency)
 
 
 def _unique_id(candidate: str, taken: set[str]) -> str:
@@ -160,7 +190,7 @@ def _log_row(record_id: str, item: RawEntry | Rejected, fmt: str, **values: obje
     return row
 
 
-def _record_row(record_id: str, entry: RawEntry, year: int) -> dict[str, object]:
+def _record_row(record_id: str, entry: RawEntry, year: int, funding: tuple[float, str, str]) -> dict[str, object]:
     row: dict[str, object] = {
         "record_id": record_id, "source_file": entry.source_file, "source_line": entry.source_line,
         "format": entry.format, "native_id": entry.native_id, "year": year,
@@ -168,12 +198,13 @@ def _record_row(record_id: str, entry: RawEntry, year: int) -> dict[str, object]
     row.update({name: str(entry.fields.get(name, "")) for name in _TEXT_COLUMNS})
     row.update({name: tuple(entry.fields.get(name, ())) for name in _LIST_COLUMNS})  # type: ignore[arg-type]
     row["has_abstract"] = bool(row["abstract"])
+    row.update(zip(FUNDING_COLUMNS, funding))
     return row
 
 
 def _records_frame(rows: list[dict[str, object]]) -> pd.DataFrame:
-    frame = pd.DataFrame(rows, columns=list(RECORD_COLUMNS))
-    return frame.astype({"source_line": "int64", "year": "int64", "has_abstract": "bool"})
+    frame = pd.DataFrame(rows, columns=[*RECORD_COLUMNS, *FUNDING_COLUMNS])
+    return frame.astype({"source_line": "int64", "year": "int64", "has_abstract": "bool", "amount": "float64"})
 
 
 def _log_frame(rows: list[dict[str, object]]) -> pd.DataFrame:

@@ -31,6 +31,8 @@ KEYS = [
     ("score", "threshold"), ("score", "cache"), ("score", "framework"), ("score", "thresholds_file"),
     ("score", "backend"), ("score", "threads"), ("analysis", "counting"), ("analysis", "min_group_size"),
     ("validation", "review_file"), ("validation", "labelled_sample"), ("departments", "staff_map"),
+    ("report", "record_noun"), ("inputs", "currency"), ("funding", "counting"), ("funding", "base_currency"),
+    ("funding", "conversion_table"),
 ]
 
 PATH_LIKE = st.sampled_from(["", ".", "..", "~", "~/x", "a.bib", "out", "out/x.csv", "missing.csv", "a.bib/x",

@@ -115,3 +115,24 @@ def test_reason_names_the_link_that_joined_the_group():
         "a:2": ("a:1", "duplicate of a:1 (same title and year)"),
         "a:3": ("a:1", "duplicate of a:1 (same DOI)"),
     }
+
+
+def test_awards_with_the_same_title_and_year_but_other_amounts_stay_apart():
+    frame = records(
+        record("g:1", title="Doctoral studentship", year=2023, abstract="Catchments."),
+        record("g:2", title="Doctoral studentship", year=2023, abstract="Catchments."),
+        record("g:3", title="Doctoral studentship", year=2023),
+    ).assign(amount=[98000.0, 104500.0, 98000.0], currency=["EUR", "EUR", "EUR"], amount_note="")
+    out, merged = dedupe(frame)
+    assert list(out["record_id"]) == ["g:1", "g:2"], "two amounts are two awards; the same amount is one"
+    assert merged == {"g:3": ("g:1", "duplicate of g:1 (same title and year)")}
+
+
+def test_the_copy_with_a_usable_amount_is_kept():
+    frame = records(
+        record("g:1", title="Heat pumps", year=2024, abstract="Retrofit."),
+        record("h:1", title="Heat pumps", year=2024),
+    ).assign(amount=[float("nan"), 310500.0], currency=["EUR", "EUR"], amount_note=["no amount", ""])
+    out, merged = dedupe(frame)
+    assert list(out["record_id"]) == ["h:1"], "the funding figures count the kept record's amount"
+    assert out.iloc[0]["abstract"] == "Retrofit." and merged == {"g:1": ("h:1", "duplicate of h:1 (same title and year)")}

@@ -10,7 +10,7 @@ from reporter.config import InputConfig, LimitsConfig
 from reporter.errors import InputError
 from reporter.ingest import read_inputs
 from reporter.ingest.intake import build_intake, parse_year
-from reporter.records import INTAKE_LOG_COLUMNS, RECORD_COLUMNS, RawEntry, ReadResult, Rejected
+from reporter.records import FUNDING_COLUMNS, INTAKE_LOG_COLUMNS, RECORD_COLUMNS, RawEntry, ReadResult, Rejected
 
 
 def _intake(data_dir: Path, names: list[str], years=(2020, 2021), **limits):
@@ -23,7 +23,7 @@ ALL_FILES = ["sample.bib", "broken.bib", "sample.ris", "broken.ris", "sample.csv
 
 def test_columns_are_exactly_the_documented_ones(data_dir) -> None:
     result = _intake(data_dir, ALL_FILES)
-    assert tuple(result.records.columns) == RECORD_COLUMNS
+    assert tuple(result.records.columns) == (*RECORD_COLUMNS, *FUNDING_COLUMNS)
     assert tuple(result.log.columns) == INTAKE_LOG_COLUMNS
 
 
