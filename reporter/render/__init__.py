@@ -13,6 +13,7 @@ from reporter.render.branding import logo_path
 from reporter.render.context import RenderInputs, ReportContext
 from reporter.render.exports import evidence_table, frame_to_csv, scores_table, write_intake_log
 from reporter.render.manifest import write_manifest
+from reporter.render.nouns import noun_in_html, report_nouns
 from reporter.render.themes import ThemeError, build_environment, load_theme
 
 __all__ = ["RenderInputs", "ReportContext", "ThemeError", "render"]
@@ -36,8 +37,9 @@ def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[s
     env = build_environment(theme)
     screen = build_context(inputs, report, theme, medium="screen")
     printed = for_print(screen, theme, report)
-    html = render_html(screen, env, theme)
-    pdf, _refused = render_pdf(render_html(printed, env, theme), theme, logo_path(report))
+    nouns = report_nouns(report)
+    html = noun_in_html(render_html(screen, env, theme), *nouns)
+    pdf, _refused = render_pdf(noun_in_html(render_html(printed, env, theme), *nouns), theme, logo_path(report))
     data = _data_files(inputs)
     workbook = build_workbook(inputs, report)
 

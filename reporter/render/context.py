@@ -316,3 +316,4 @@ class ReportContext:
     validation: ValidationSection | None = _h("Validation against the labelled sample, or None when none was given")
     theme: ThemeView = _h("Stylesheets and page settings of the theme")
     explorer: ExplorerSection | None = _h("Publication explorer; report.html only (None in print)", default=None)
+    funding: Any = _h("FundingSection (render/funding_section.py) of a grant portfolio; None otherwise", default=None)

@@ -78,6 +78,14 @@ def fmt_p(value: object) -> str:
     return "<0.001" if number < 0.001 else f"{number:.3f}"
 
 
+def fmt_amount(value: object, currency: str = "") -> str:
+    """A sum of money in whole units with its ISO 4217 code: 64847630.4 -> "EUR 64,847,630"."""
+    if _is_missing(value):
+        return MISSING
+    text = f"{float(value):,.0f}"  # type: ignore[arg-type]
+    return f"{currency} {text}".strip()
+
+
 def fmt_years(years: object) -> str:
     """Years as ranges: [2022, 2023, 2024] -> "2022-2024", so decades of years stay one phrase."""
     return year_ranges(years or ())  # type: ignore[arg-type]
@@ -100,5 +108,6 @@ FILTERS = {
     "fmt_score": fmt_score,
     "fmt_p": fmt_p,
     "fmt_years": fmt_years,
+    "fmt_amount": fmt_amount,
     "fmt_baselines": fmt_baselines,
 }

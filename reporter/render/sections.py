@@ -14,7 +14,7 @@ from typing import Sequence
 import pandas as pd
 
 from reporter.records import ENRICHED_COLUMNS, INTAKE_LOG_COLUMNS, RECORD_COLUMNS, SCORE_COLUMNS, require_columns
-from reporter.render import charts, explorer
+from reporter.render import charts, explorer, funding_section
 from reporter.render import validation_section
 from reporter.render.appendix import POLICY_TEXT, build_cautions, build_evidence, build_method
 from reporter.render.branding import build_branding, build_theme_view
@@ -44,10 +44,13 @@ SECTIONS = (
 VALIDATION_SECTION = (validation_section.ANCHOR, validation_section.HEADING, validation_section.PARTIAL)
 #: Sections of report.html only, after the others: the PDF keeps its capped evidence appendix.
 SCREEN_SECTIONS = ((explorer.ANCHOR, explorer.HEADING, explorer.PARTIAL),)
+FUNDING_SECTION = (funding_section.ANCHOR, funding_section.HEADING, funding_section.PARTIAL)
 
 
-def _sections(has_validation: bool, medium: str = "screen") -> tuple[SectionLink, ...]:
+def _sections(has_validation: bool, medium: str = "screen", has_funding: bool = False) -> tuple[SectionLink, ...]:
     sections = list(SECTIONS)
+    if has_funding:  # a portfolio's funding figures come right after "At a glance"
+        sections.insert(1, FUNDING_SECTION)
     if has_validation:
         sections.insert([anchor for anchor, _t, _p in SECTIONS].index("method") + 1, VALIDATION_SECTION)
     if medium == "screen":
@@ -107,6 +110,8 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
         fdr=float(meta.get("fdr", math.nan)),
     )
     validation = validation_section.build_validation(findings.extra, goals, theme, POLICY_TEXT)
+    funding = funding_section.build_funding(getattr(findings, "funding", None), goals, _group_rows, _change_rows,
+                                            _compact_change_rows)
     return ReportContext(
         title=report.title,
         branding=build_branding(report),
@@ -114,7 +119,7 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
         years=years,
         generated_at=inputs.generated_at,
         software=f"Waymark {inputs.manifest.get('waymark_version', '')}".strip(),
-        sections=_sections(validation is not None, medium),
+        sections=_sections(validation is not None, medium, has_funding=funding is not None),
         summary=summary,
         goal_profile=GoalProfile(rows=profile_rows, chart=charts.draw_goal_profile(profile_rows, theme)),
         change=change,
@@ -127,6 +132,7 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
         validation=validation,
         explorer=explorer.build_explorer(inputs, goals, theme) if medium == "screen" else None,
         theme=build_theme_view(theme, report, medium),
+        funding=funding,
     )
 
 

@@ -8,11 +8,14 @@ gets is set by its kind (xlsx.py).
 
 from __future__ import annotations
 
+import dataclasses
+
 import pandas as pd
 
 from reporter.analyse import findings_tables
 from reporter.render.appendix import BACKEND_TEXT, COUNTING_TEXT, POLICY_TEXT
 from reporter.render.context import RenderInputs
+from reporter.render.nouns import noun_in_text, report_nouns
 from reporter.render.xlsx import Column, Table, write_workbook
 
 SUMMARY = "Summary"
@@ -49,7 +52,50 @@ def build_workbook(inputs: RenderInputs, report) -> bytes:
               "data/scores.csv"),
         Table("Intake log", INTAKE_COLUMNS, inputs.intake_log, "intake-log.csv"),
     ]
-    return write_workbook(SUMMARY, summary_lines(inputs, report, [sheet.title for sheet in sheets]), sheets)
+    funding = getattr(inputs.findings, "funding", None)
+    if funding is not None:
+        sheets[1:1] = _funding_sheets(funding, goals)
+    singular, plural = report_nouns(report)
+    sheets = [_with_noun(sheet, singular, plural) for sheet in sheets]
+    lines = [(noun_in_text(label, singular, plural), noun_in_text(value, singular, plural)
+              if isinstance(value, str) else value, kind)
+             for label, value, kind in summary_lines(inputs, report, [sheet.title for sheet in sheets])]
+    if funding is not None:
+        head, currency = funding.headline, funding.meta.get("base_currency", "")
+        lines[5:5] = [(f"Funding in the figures ({currency})", head.get("amount_total"), "amount"),
+                      (f"{plural.capitalize()} with a usable amount", head.get("n_in_funding"), "count"),
+                      ("Share of funding aligned with at least one goal", head.get("share_aligned_any"), "share")]
+    return write_workbook(SUMMARY, lines, sheets)
+
+
+def _with_noun(sheet: Table, singular: str, plural: str) -> Table:
+    """Sheet names and headers in the configured record noun ("Awards", "Awards now")."""
+    columns = tuple(dataclasses.replace(c, header=noun_in_text(c.header, singular, plural)) for c in sheet.columns)
+    return dataclasses.replace(sheet, title=noun_in_text(sheet.title, singular, plural)[:31], columns=columns)
+
+
+_FUNDING_SHARE = (Column("n_awards", "Awards", "count"), Column("n_aligned", "Aligned", "count"),
+                  Column("amount_total", "Funding", "amount"), Column("amount", "Counted for the goal", "amount"),
+                  Column("share", "Share of funding", "share"), Column("share_low", "Interval low", "share"),
+                  Column("share_high", "Interval high", "share"))
+
+
+def _funding_sheets(funding, goals: tuple[tuple[str, str], ...]) -> list[Table]:
+    """A portfolio's funding tables (findings-funding-*.csv), amounts in the base currency."""
+    goal = (Column("goal", "Goal", "code"), Column("goal_title", "Goal title", "text"))
+    changes = goal + (Column("baseline", "Compared with", "text"), Column("share_baseline", "Share then", "share"),
+                      Column("share", "Share now", "share"), Column("diff", "Difference", "diff"),
+                      Column("diff_low", "Difference low", "diff"), Column("diff_high", "Difference high", "diff"),
+                      Column("p_adjusted", "Adjusted p", "p"), Column("verdict", "Verdict", "text"))
+    return [
+        Table("Funding by goal", goal + _FUNDING_SHARE[1:], _titled(funding.goals, goals),
+              "data/findings-funding-goals.csv"),
+        Table("Funding changes", changes, _titled(funding.changes, goals), "data/findings-funding-changes.csv"),
+        Table("Funding by department", (Column("department", "Department", "text"),) + goal + _FUNDING_SHARE,
+              _titled(funding.by_department, goals), "data/findings-funding-by-department.csv"),
+        Table("Funding by country", (Column("country_name", "Partner country", "text"),) + goal + _FUNDING_SHARE,
+              _titled(funding.by_country, goals), "data/findings-funding-by-country.csv"),
+    ]
 
 
 def _level(meta: dict) -> str:

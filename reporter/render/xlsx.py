@@ -37,6 +37,7 @@ FORMATS = {
     "diff": "+0.0%;-0.0%;0.0%",  # a difference of shares, signed
     "score": "0.000",
     "p": "[<0.001]0.0E+00;0.000",  # small p-values in scientific notation rather than 0.000
+    "amount": "#,##0",  # money in whole units of the base currency
 }
 TEXT_KINDS = ("text", "long_text", "code", "flag")
 _DECIMAL = "0.00"

@@ -135,3 +135,46 @@ def test_the_planned_rise_in_energy_funding_holds(funding):
     for row in funding["tables"]["changes"]:
         if row["is_change"]:
             assert row["p_adjusted"] < fdr and (row["diff_low"] > 0 or row["diff_high"] < 0), row
+
+
+def _pdf_text(out: Path) -> str:
+    from pypdf import PdfReader
+
+    return " ".join((page.extract_text() or "") for page in PdfReader(str(out / "report.pdf")).pages)
+
+
+def test_the_report_reads_in_funding_terms_throughout(build, funding):
+    """The PDF and the HTML as a reader sees them: awards, not publications; the known total; the rise."""
+    import re
+
+    out = build[0]
+    pdf = re.sub(r"\s+", " ", _pdf_text(out))
+    html = (out / "report.html").read_text(encoding="utf-8")
+    visible = re.sub(r"\s+", " ", re.sub(r"<[^>]+>", " ", re.sub(r"(?s)<(script|style)\b.*?</\1>", "", html)))
+    for text in (pdf, visible):
+        assert not re.search(r"(?i)\bpublications?\b", text), "every 'publication' reads as the record noun"
+        # The key figure and its label are separate blocks: pypdf may join them without a space.
+        assert re.search(rf"{KNOWN['awards_after_dedupe']} ?awards analysed", text)
+        assert f"EUR {KNOWN['amount_total']:,.0f}" in text, "the known total funding, in the base currency"
+        assert "Funding by goal" in text and "Funding share per goal" in text
+    share = {row["goal"]: row for row in funding["tables"]["goals"]}["7"]
+    assert f"Goal 7 · Affordable and Clean Energy: {100 * share['share']:.1f}% of funding" in pdf
+    assert re.search(r"Affordable and Clean Energy, increase from [\d.]+% \(mean 2022-2024\)", pdf)
+    assert "rates.csv" in pdf, "the method names the conversion table used"
+    assert "split equally" in pdf, "the counting mode (fractional) is stated"
+
+
+def test_the_workbook_holds_the_funding_sheets_in_award_terms(build, funding):
+    import openpyxl  # read back as a spreadsheet program would
+
+    book = openpyxl.load_workbook(build[0] / "report.xlsx")
+    assert {"Funding by goal", "Funding changes", "Funding by department", "Awards"} <= set(book.sheetnames)
+    assert "Publications" not in book.sheetnames
+    summary = {row[0].value: row[1].value for row in book["Summary"].iter_rows()}
+    assert summary["Funding in the figures (EUR)"] == pytest.approx(KNOWN["amount_total"], abs=1)
+    assert summary["Awards analysed"] == KNOWN["awards_after_dedupe"]
+    sheet = book["Funding by goal"]
+    header = [c.value for c in sheet[1]]
+    shares = {str(row[0]): row[header.index("Share of funding")] for row in sheet.iter_rows(min_row=2, values_only=True)}
+    expected = {row["goal"]: row["share"] for row in funding["tables"]["goals"]}
+    assert shares == pytest.approx(expected, abs=1e-6), "findings.json rounds to 6 places"

@@ -122,7 +122,7 @@
         row.hidden = !visible;
         if (visible) { listed += 1; }
       });
-      count.textContent = number(nMatched) + " of " + number(rows.length) + " publications " +
+      count.textContent = number(nMatched) + " of " + number(rows.length) + " " + (count.getAttribute("data-noun") || "publications") + " " +
         (listed < nMatched ? "match; the first " + number(listed) + " are shown" : "shown");
       more.hidden = listed >= nMatched;
       more.textContent = "Show " + number(Math.min(atOnce, nMatched - listed)) + " more";
