@@ -30,6 +30,8 @@ def _setup_logging(verbose: int, quiet: bool) -> None:
     logging.basicConfig(level=level, format="%(levelname)s %(message)s", stream=sys.stderr)
     # bibtexparser logs every failed block with 0-based lines; the intake log already lists them, 1-based.
     logging.getLogger("bibtexparser").setLevel(logging.ERROR)
+    # WeasyPrint logs each layout step of every PDF (a brief each too); -v shows them, the default does not.
+    logging.getLogger("weasyprint.progress").setLevel(logging.INFO if verbose else logging.WARNING)
 
 
 def _with_execution(config, execution: str | None, scheduler: str | None):
@@ -88,6 +90,8 @@ def intake(config_path: Path, out_dir: Path | None, verbose: int, quiet: bool) -
 @click.option("--sentences", is_flag=True, help="Also export per-sentence scores (data/sentences.csv).")
 @click.option("--review-worksheet", is_flag=True,
               help="Also write review-worksheet.csv: borderline pairs near the threshold, for people to decide.")
+@click.option("--briefs/--no-briefs", default=None,
+              help="Also write one department brief per department into briefs/ (overrides report.briefs).")
 @click.option("--threads", type=click.IntRange(min=1), default=None,
               help="CPU threads for the model (overrides score.threads; all cores when both are unset).")
 @click.option("--execution", type=click.Choice(["local", "dask"]), default=None,
@@ -96,8 +100,8 @@ def intake(config_path: Path, out_dir: Path | None, verbose: int, quiet: bool) -
               help="Dask scheduler address such as tcp://host:8786 (overrides score.scheduler).")
 @click.option("-v", "--verbose", count=True, help="More detail on stderr.")
 @click.option("-q", "--quiet", is_flag=True, help="No progress bars; warnings only.")
-def build(config_path: Path, out_dir: Path | None, sentences: bool, review_worksheet: bool, threads: int | None,
-          execution: str | None, scheduler: str | None, verbose: int, quiet: bool) -> None:
+def build(config_path: Path, out_dir: Path | None, sentences: bool, review_worksheet: bool, briefs: bool | None,
+          threads: int | None, execution: str | None, scheduler: str | None, verbose: int, quiet: bool) -> None:
     """Run the whole job: intake, scoring, analysis, report (HTML + PDF), exports, manifest."""
     from reporter.config import load_config
     from reporter.pipeline import run
@@ -109,6 +113,8 @@ def build(config_path: Path, out_dir: Path | None, sentences: bool, review_works
         if threads is not None:
             config = config.model_copy(update={"score": config.score.model_copy(update={"threads": threads})})
         config = _with_execution(config, execution, scheduler)
+        if briefs is not None:
+            config = config.model_copy(update={"report": config.report.model_copy(update={"briefs": briefs})})
         result = run(config, show_progress=not quiet, keep_sentences=sentences, review_worksheet=review_worksheet)
     except ReporterError as error:
         _fail(error)
@@ -122,7 +128,12 @@ def build(config_path: Path, out_dir: Path | None, sentences: bool, review_works
     )
     click.echo(f"Written to {config.output_dir}:")
     for label, path in result.written.items():
-        click.echo(f"  {label}: {path}")
+        if not label.startswith("briefs/"):
+            click.echo(f"  {label}: {path}")
+    if result.briefs is not None:
+        from reporter.render.briefs import briefs_summary
+
+        click.echo(briefs_summary(result.briefs, config.output_dir))
     for path in result.removed:
         click.echo(f"  removed (from an earlier build, not made this time): {path}")
 

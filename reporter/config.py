@@ -71,6 +71,13 @@ class ReportConfig(_Section):
             '"projects", or a [singular, plural] pair such as ["grant", "grants"].'
         ),
     )
+    briefs: bool = Field(
+        default=False,
+        description=(
+            "Also write one short department brief per department into briefs/ of the output folder "
+            "(HTML and PDF): its goal profile against the institution's, its changes and strongest evidence."
+        ),
+    )
 
     @field_validator("institution", "title")
     @classmethod
@@ -96,6 +103,14 @@ class ReportConfig(_Section):
         if not re.fullmatch(r"#[0-9a-fA-F]{6}", value):
             raise ValueError(f"expected a colour as #rrggbb, got {value!r}")
         return value.lower()
+
+    @field_validator("briefs", mode="before")
+    @classmethod
+    def _true_or_false(cls, value: Any) -> Any:
+        # TOML has real booleans; "yes" or 1 would otherwise pass as true without a word.
+        if not isinstance(value, bool):
+            raise ValueError(f"expected true or false (without quotes), got {value!r}")
+        return value
 
     @field_validator("output", mode="before")
     @classmethod

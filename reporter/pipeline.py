@@ -32,6 +32,7 @@ class RunResult:
     scores: object = None  # score.Scores
     findings: object = None  # analyse.Findings
     removed: tuple[Path, ...] = ()  # files of an earlier build in the output folder that this one did not write
+    briefs: object = None  # analyse.departments.DepartmentSplit, when department briefs were written
 
 
 def check_intake(config: Config, intake: IntakeResult) -> None:
@@ -120,11 +121,12 @@ def run(config: Config, show_progress: bool = True, keep_sentences: bool = False
     # Reviewers overrule the machine before any figure is computed; validation below still
     # measures the machine's own decisions, since that is what its error rates describe.
     decided, overrides = _apply_review(config, intake, scores)
+    general_mentions = scores.general_mentions.set_index("record_id")["n_general_mentions"]
     findings = analyse(
         intake.records, decided, goals, config.analysis,
         config.report.reporting_year, config.report.comparison_years,
         scores.thresholds, scores.policy,
-        general_mentions=scores.general_mentions.set_index("record_id")["n_general_mentions"],
+        general_mentions=general_mentions,
         conversion=conversion_for(config, intake.records), funding=config.funding, noun=config.report.nouns,
     )
     findings = _with_human_judgement(config, intake, scores, findings, overrides)
@@ -151,6 +153,15 @@ def run(config: Config, show_progress: bool = True, keep_sentences: bool = False
     extras: dict[str, Path] = {}
     if review_worksheet:
         extras.update(_write_review_worksheet(config, intake, scores))
+    briefs = None
+    if config.report.briefs:
+        from reporter.analyse.departments import department_findings
+        from reporter.render.briefs import write_briefs
+
+        # The analyse stage once more per department, with the main run's years, thresholds and policy.
+        briefs = department_findings(intake.records, decided, goals, config.analysis, findings,
+                                     general_mentions=general_mentions)
+        extras.update(write_briefs(briefs, inputs, config.report, config.output_dir, show_progress=show_progress))
     if keep_sentences and scores.sentences is not None:
         from reporter.render.exports import write_csv
 
@@ -158,7 +169,8 @@ def run(config: Config, show_progress: bool = True, keep_sentences: bool = False
         extras["data/sentences.csv"] = write_csv(scores.sentences, path, root=config.output_dir)
     written = {**render(inputs, config.report, config.output_dir, extra_outputs=extras), **extras}
     removed = remove_stale_outputs(config.output_dir, previous, written)
-    return RunResult(intake=intake, written=written, scores=scores, findings=findings, removed=tuple(removed))
+    return RunResult(intake=intake, written=written, scores=scores, findings=findings, removed=tuple(removed),
+                     briefs=briefs)
 
 
 def _apply_review(config: Config, intake: IntakeResult, scores):

@@ -10,10 +10,11 @@ from reporter.render.themes import Theme, ThemeError
 ENTRY_TEMPLATE = "report.html"
 
 
-def render_html(context: ReportContext, env: jinja2.Environment, theme: Theme) -> str:
-    """Render the theme's entry template; any template failure becomes a ThemeError naming the template."""
+def render_html(context: ReportContext, env: jinja2.Environment, theme: Theme, entry: str = ENTRY_TEMPLATE) -> str:
+    """Render the theme's entry template (report.html, or brief.html for a department brief); any template
+    failure becomes a ThemeError naming the template."""
     try:
-        return env.get_template(ENTRY_TEMPLATE).render(report=context)
+        return env.get_template(entry).render(report=context)
     except jinja2.TemplateNotFound as exc:
         raise ThemeError(
             f"theme {theme.name!r}: template {exc.name!r} not found in the theme folders "

@@ -70,4 +70,11 @@ def remove_stale_outputs(output_dir: Path, previous: tuple[str, ...], written: d
         if target not in now and target.is_file():
             target.unlink()
             removed.append(target)
+            _remove_if_empty(target.parent, output_dir)
     return removed
+
+
+def _remove_if_empty(folder: Path, output_dir: Path) -> None:
+    """A subfolder emptied by the removal (briefs/ of a build without briefs) goes too; the output folder stays."""
+    if folder.resolve() != output_dir.resolve() and not any(folder.iterdir()):
+        folder.rmdir()

@@ -75,12 +75,9 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
     titles = dict(goals)
     meta = findings.meta
     min_size = int(meta.get("min_group_size", 10))
-    profile_rows = _goal_rows(findings.goals, goals)
+    profile_rows = goal_rows(findings.goals, goals)
     change_rows = _change_rows(findings.changes, goals)
-    comparison_years = tuple(int(y) for y in meta.get("comparison_years", ()))
-    # Older findings lack the per-year presence fields: then every configured year was compared.
-    compared = tuple(int(y) for y in meta.get("comparison_years_compared", comparison_years))
-    has_comparison = bool(compared) and bool(change_rows)
+    change = change_section(findings, goals, int(report.reporting_year), theme)
     headline = findings.headline
     ranked = sorted((r for r in profile_rows if r.share > 0), key=lambda r: -r.share)
     summary = Summary(
@@ -92,22 +89,7 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
         n_explicit_any=headline.get("n_explicit_any", math.nan),
         leading_goals=tuple(ranked[:N_LEADING_GOALS]),
         changes=_summary_changes(change_rows),
-        has_comparison=has_comparison,
-    )
-    years = tuple(sorted(int(y) for y in meta.get("years_present", meta.get("years", ()))))
-    with_publications = findings.by_year.loc[findings.by_year["n"] > 0] if not findings.by_year.empty else None
-    n_years = with_publications["year"].nunique() if with_publications is not None else 0
-    change = ChangeSection(
-        has_comparison=has_comparison,
-        reporting_year=int(report.reporting_year),
-        comparison_years=compared,
-        empty_years=tuple(int(y) for y in meta.get("comparison_years_empty", ())),
-        is_reporting_year_empty=int(report.reporting_year) not in years,
-        rows=_compact_change_rows(change_rows),
-        n_rows_full=len(change_rows),
-        is_tested=any(r.verdict != "too small" for r in change_rows),
-        chart=charts.draw_change(with_publications, goals, theme) if n_years > 1 else None,
-        fdr=float(meta.get("fdr", math.nan)),
+        has_comparison=change.has_comparison,
     )
     validation = validation_section.build_validation(findings.extra, goals, theme, POLICY_TEXT)
     funding = funding_section.build_funding(getattr(findings, "funding", None), goals, _group_rows, _change_rows,
@@ -116,7 +98,7 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
         title=report.title,
         branding=build_branding(report),
         reporting_year=int(report.reporting_year),
-        years=years,
+        years=_years_present(meta),
         generated_at=inputs.generated_at,
         software=f"Waymark {inputs.manifest.get('waymark_version', '')}".strip(),
         sections=_sections(validation is not None, medium, has_funding=funding is not None),
@@ -136,13 +118,41 @@ def build_context(inputs: RenderInputs, report: object, theme: Theme, medium: st
     )
 
 
+def _years_present(meta: dict) -> tuple[int, ...]:
+    return tuple(sorted(int(y) for y in meta.get("years_present", meta.get("years", ()))))
+
+
+def change_section(findings, goals: Sequence[tuple[str, str]], reporting_year: int,
+                   theme: Theme | None) -> ChangeSection:
+    """The change section from `findings`; the per-year chart only with a theme and two years of publications."""
+    meta = findings.meta
+    change_rows = _change_rows(findings.changes, goals)
+    comparison_years = tuple(int(y) for y in meta.get("comparison_years", ()))
+    # Older findings lack the per-year presence fields: then every configured year was compared.
+    compared = tuple(int(y) for y in meta.get("comparison_years_compared", comparison_years))
+    with_publications = findings.by_year.loc[findings.by_year["n"] > 0] if not findings.by_year.empty else None
+    n_years = with_publications["year"].nunique() if with_publications is not None else 0
+    return ChangeSection(
+        has_comparison=bool(compared) and bool(change_rows),
+        reporting_year=reporting_year,
+        comparison_years=compared,
+        empty_years=tuple(int(y) for y in meta.get("comparison_years_empty", ())),
+        is_reporting_year_empty=reporting_year not in _years_present(meta),
+        rows=_compact_change_rows(change_rows),
+        n_rows_full=len(change_rows),
+        is_tested=any(r.verdict != "too small" for r in change_rows),
+        chart=charts.draw_change(with_publications, goals, theme) if theme is not None and n_years > 1 else None,
+        fdr=float(meta.get("fdr", math.nan)),
+    )
+
+
 def _check_inputs(inputs: RenderInputs) -> None:
     require_columns(inputs.records, RECORD_COLUMNS + ENRICHED_COLUMNS, "render: records")
     require_columns(inputs.scores, SCORE_COLUMNS, "render: scores")
     require_columns(inputs.intake_log, INTAKE_LOG_COLUMNS, "render: intake_log")
 
 
-def _goal_rows(frame: pd.DataFrame, goals: Sequence[tuple[str, str]]) -> tuple[GoalRow, ...]:
+def goal_rows(frame: pd.DataFrame, goals: Sequence[tuple[str, str]]) -> tuple[GoalRow, ...]:
     by_goal = frame.assign(goal=frame["goal"].astype(str)).set_index("goal")
     rows = []
     for code, title in goals:

@@ -189,3 +189,13 @@ def test_a_cache_path_that_is_not_a_cache_is_refused_before_scoring(tmp_path):
     (tmp_path / "folder").mkdir()
     path = _write(tmp_path, GOOD + '\n[score]\ncache = "folder"\n')
     assert _problems(path) == [f"{path}:11: score.cache: {tmp_path / 'folder'} is a folder; expected the cache file's path"]
+
+
+# --- department briefs (issue 16) ---
+
+
+def test_briefs_are_off_by_default_and_take_true_or_false_only(tmp_path):
+    assert load_config(_write(tmp_path, GOOD)).report.briefs is False
+    assert load_config(_write(tmp_path, GOOD.replace("reporting_year = 2025", "reporting_year = 2025\nbriefs = true"))).report.briefs
+    path = _write(tmp_path, GOOD.replace("reporting_year = 2025", 'reporting_year = 2025\nbriefs = "yes"'))
+    assert _problems(path) == [f"{path}:5: report.briefs: expected true or false (without quotes), got 'yes'"]

@@ -39,3 +39,18 @@ def test_no_manifest_or_not_ours_means_nothing_to_remove(tmp_path):
     assert previous_outputs(tmp_path) == ()
     (tmp_path / "manifest.json").write_text("[1, 2]", encoding="utf-8")
     assert previous_outputs(tmp_path) == ()
+
+
+def test_briefs_of_an_earlier_build_go_with_their_emptied_folder(tmp_path):
+    _earlier_build(tmp_path, ["report.html", "briefs/hydrology.html", "briefs/hydrology.pdf"])
+    previous = previous_outputs(tmp_path)
+    removed = remove_stale_outputs(tmp_path, previous, {"report.html": tmp_path / "report.html"})
+    assert sorted(p.name for p in removed) == ["hydrology.html", "hydrology.pdf"]
+    assert not (tmp_path / "briefs").exists(), "a folder only our briefs were in goes with them"
+
+
+def test_a_folder_holding_anything_else_stays(tmp_path):
+    _earlier_build(tmp_path, ["briefs/hydrology.pdf"])
+    (tmp_path / "briefs" / "notes.txt").write_text("the user's own", encoding="utf-8")
+    remove_stale_outputs(tmp_path, previous_outputs(tmp_path), {})
+    assert (tmp_path / "briefs" / "notes.txt").exists() and not (tmp_path / "briefs" / "hydrology.pdf").exists()

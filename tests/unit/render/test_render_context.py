@@ -6,6 +6,7 @@ from dataclasses import replace as swap
 import pytest
 
 from tests.unit.render.render_inputs import GOALS, make_inputs, make_report
+from reporter.render import brief_context
 from reporter.render import context as ctx
 from reporter.render import context_explorer
 from reporter.render.appendix import build_evidence, doi_url
@@ -18,14 +19,18 @@ def _dataclasses_in(module):
     return [obj for obj in vars(module).values() if dataclasses.is_dataclass(obj) and obj.__module__ == module.__name__]
 
 
-@pytest.mark.parametrize("cls", _dataclasses_in(ctx) + _dataclasses_in(context_explorer), ids=lambda c: c.__name__)
+# The department briefs' context (brief_context.py) and the explorer's follow the same rules as the report's.
+CONTEXT_TYPES = [*_dataclasses_in(ctx), *_dataclasses_in(context_explorer), *_dataclasses_in(brief_context)]
+
+
+@pytest.mark.parametrize("cls", CONTEXT_TYPES, ids=lambda c: c.__name__)
 def test_every_context_field_has_help_text(cls):
     missing = [f.name for f in dataclasses.fields(cls) if not f.metadata.get("help")]
     assert not missing, f"{cls.__name__}: fields without help text: {missing}"
 
 
 def test_context_types_are_frozen():
-    for cls in _dataclasses_in(ctx) + _dataclasses_in(context_explorer):
+    for cls in CONTEXT_TYPES:
         assert cls.__dataclass_params__.frozen, f"{cls.__name__} must be frozen"
 
 
