@@ -13,6 +13,8 @@ import pandas as pd
 import pycountry
 from lingua import Language, LanguageDetector, LanguageDetectorBuilder
 
+from reporter.stages import stage
+
 #: Candidate languages. A fixed, short list keeps detection fast and stops rare languages
 #: winning on short titles. It covers European research output plus the languages of the
 #: largest non-European publishing countries; a text in a language not listed comes out as
@@ -89,7 +91,8 @@ def add_languages(
     todo = [i for i, code in enumerate(codes) if not code]
     if todo:
         texts = [_text(records.iloc[i]) for i in todo]
-        all_values = detector_factory().compute_language_confidence_values_in_parallel(texts)
+        with stage("language", f"Detecting the language of {len(texts)} publication{'s' if len(texts) != 1 else ''}"):
+            all_values = detector_factory().compute_language_confidence_values_in_parallel(texts)
         for i, text, values in zip(todo, texts, all_values):
             confidences = {v.language.iso_code_639_1.name.lower(): v.value for v in values}
             results[i] = decide_language(confidences, len(text.split()))

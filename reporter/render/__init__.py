@@ -15,6 +15,7 @@ from reporter.render.context import RenderInputs, ReportContext
 from reporter.render.exports import evidence_table, frame_to_csv, scores_table, write_intake_log
 from reporter.render.manifest import write_manifest
 from reporter.render.themes import ThemeError, build_environment, load_theme
+from reporter.stages import stage
 
 __all__ = ["RenderInputs", "ReportContext", "ThemeError", "render"]
 
@@ -34,11 +35,16 @@ def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[s
     output_dir = Path(output_dir)
     theme = load_theme(report.theme)
     env = build_environment(theme)
-    screen = build_context(inputs, report, theme, medium="screen")
+    with stage("charts", "Drawing the charts"):  # with the rest of the report context
+        screen = build_context(inputs, report, theme, medium="screen")
     printed = dataclasses.replace(screen, theme=build_theme_view(theme, report, "print"))
-    html = render_html(screen, env, theme)
-    pdf, _refused = render_pdf(render_html(printed, env, theme), theme, logo_path(report))
-    data = _data_files(inputs)
+    with stage("html"):
+        html = render_html(screen, env, theme)
+        printed_html = render_html(printed, env, theme)
+    with stage("pdf", "Laying out report.pdf"):
+        pdf, _refused = render_pdf(printed_html, theme, logo_path(report))
+    with stage("data"):
+        data = _data_files(inputs)
 
     written: dict[str, Path] = {}
     data_dir = output_dir / "data"

@@ -22,7 +22,9 @@ from pathlib import Path
 import numpy as np
 
 from reporter.errors import ModelError, Problem
-from reporter.score.embedder import BUILTIN_MODEL, ModelInfo, _force_offline, model_checksum, resolve_model_dir
+from reporter.score.embedder import (
+    BUILTIN_MODEL, ModelInfo, _force_offline, count_word_pieces, model_checksum, resolve_model_dir,
+)
 
 INT8_SUFFIX = ":onnx-int8"
 _INPUTS = ("input_ids", "attention_mask", "token_type_ids")
@@ -81,8 +83,7 @@ class QuantisedEmbedder:
 
     def count_tokens(self, texts: list[str]) -> list[int]:
         """Word pieces per text, without the special markers."""
-        encoded = self._tokenizer(texts, add_special_tokens=False, truncation=False)["input_ids"]
-        return [len(ids) for ids in encoded]
+        return count_word_pieces(self._tokenizer, texts)
 
 
 def _check_supported(folder: Path) -> int:
