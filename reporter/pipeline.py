@@ -17,13 +17,30 @@ from reporter.records import IntakeResult
 from reporter.stages import stage, timed_run
 
 
-def run_intake(config: Config) -> IntakeResult:
-    """Read and enrich the inputs; the intake log accounts for every record read."""
+def run_intake(config: Config, remember_languages: bool = False) -> IntakeResult:
+    """Read and enrich the inputs; the intake log accounts for every record read.
+
+    With `remember_languages`, language detection results are read from and kept in the score
+    cache's file (when the cache is used), so a rebuild of the same list detects nothing again.
+    The intake check leaves it off: it writes nothing but its log.
+    """
     n_files = len(config.inputs)
     with stage("intake", f"Reading {n_files} input file{'s' if n_files != 1 else ''}"):
         intake = read_inputs(config.inputs, config.report.years, config.limits, config.base_dir)
-        # Duplicates are found after reading every file, so the log can name the record kept instead.
-        return enrich(intake, config.report, config.departments)
+        with _language_memo(config, remember_languages) as memo:
+            # Duplicates are found after reading every file, so the log can name the record kept instead.
+            return enrich(intake, config.report, config.departments, languages=memo)
+
+
+def _language_memo(config: Config, wanted: bool):
+    import contextlib
+
+    if not wanted or not config.score.use_cache or config.score.cache is None:
+        return contextlib.nullcontext()
+    from reporter.enrich.language import default_detector_key
+    from reporter.enrich.language_memo import LanguageMemo
+
+    return LanguageMemo(config.score.cache, default_detector_key())
 
 
 @dataclass(frozen=True)
@@ -100,7 +117,7 @@ def _run(config: Config, show_progress: bool, keep_sentences: bool, review_works
     from reporter.score import load_scoring_parts, score
 
     started = dt.datetime.now(dt.timezone.utc).replace(microsecond=0)
-    intake = run_intake(config)
+    intake = run_intake(config, remember_languages=True)
     # Before the model loads: an input that gave nothing is a lost file, and a year with nothing in
     # it would compare as "no change" or a fall to 0%.
     check_intake(config, intake)
@@ -307,7 +324,7 @@ def check_labels(config: Config, thresholds_path: Path | None = None, show_progr
     from reporter.render.atomic import write_text_atomic
     from reporter.score import load_scoring_parts, score
 
-    intake = run_intake(config)
+    intake = run_intake(config, remember_languages=True)
     parts = load_scoring_parts(config.score)
     try:
         labelled = _labelled_sample(config, intake, parts.framework.goal_codes)
