@@ -184,8 +184,9 @@ def _run(config: Config, show_progress: bool, keep_sentences: bool, review_works
 
         path = config.output_dir / "data" / "sentences.csv"
         extras["data/sentences.csv"] = write_csv(scores.sentences, path, root=config.output_dir)
+    cache = config.score.cache if config.score.use_cache else None  # also keeps drawn charts
     with stage("report"):
-        written = {**render(inputs, config.report, config.output_dir, extra_outputs=extras), **extras}
+        written = {**render(inputs, config.report, config.output_dir, extra_outputs=extras, cache=cache), **extras}
     removed = remove_stale_outputs(config.output_dir, previous, written)
     return RunResult(intake=intake, written=written, scores=scores, findings=findings, removed=tuple(removed))
 

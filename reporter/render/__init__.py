@@ -11,6 +11,7 @@ from pathlib import Path
 
 from reporter.render.atomic import write_bytes_atomic, write_text_atomic
 from reporter.render.branding import build_theme_view, logo_path
+from reporter.render.chart_memo import remembered_charts
 from reporter.render.context import RenderInputs, ReportContext
 from reporter.render.exports import evidence_table, frame_to_csv, scores_table, write_intake_log
 from reporter.render.manifest import write_manifest
@@ -20,11 +21,13 @@ from reporter.stages import stage
 __all__ = ["RenderInputs", "ReportContext", "ThemeError", "render"]
 
 
-def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[str, Path] | None = None) -> dict[str, Path]:
+def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[str, Path] | None = None,
+           cache: Path | None = None) -> dict[str, Path]:
     """Write report.html, report.pdf and data/* into `output_dir`; return label -> path written.
 
     `report` is the `ReportConfig` (institution, title, reporting_year, theme, logo, accent_colour).
     `extra_outputs` are files the caller already wrote into the folder; the manifest lists them too.
+    `cache` is the score cache's file, where charts drawn before are found (chart_memo.py); None: none kept.
     """
     from reporter.render.html import render_html
     from reporter.render.pdf import render_pdf
@@ -35,7 +38,7 @@ def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[s
     output_dir = Path(output_dir)
     theme = load_theme(report.theme)
     env = build_environment(theme)
-    with stage("charts", "Drawing the charts"):  # with the rest of the report context
+    with stage("charts", "Drawing the charts"), remembered_charts(cache):  # with the rest of the report context
         screen = build_context(inputs, report, theme, medium="screen")
     printed = dataclasses.replace(screen, theme=build_theme_view(theme, report, "print"))
     with stage("html"):
