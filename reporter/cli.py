@@ -8,8 +8,6 @@ keeps its traceback.
 from __future__ import annotations
 
 import logging
-import os
-import sys
 from pathlib import Path
 
 import click
@@ -23,11 +21,10 @@ def _fail(error: ReporterError) -> None:
 
 
 def _setup_logging(verbose: int, quiet: bool) -> None:
-    level = logging.WARNING if quiet else (logging.DEBUG if verbose > 1 else logging.INFO)
-    if quiet:
-        # transformers draws its own weight-loading bar; it reads this switch when first imported.
-        os.environ["HF_HUB_DISABLE_PROGRESS_BARS"] = "1"
-    logging.basicConfig(level=level, format="%(levelname)s %(message)s", stream=sys.stderr)
+    """The console for this command (see reporter/console.py), put back when the command ends."""
+    from reporter.console import console
+
+    click.get_current_context().with_resource(console(verbose, quiet))
     # bibtexparser logs every failed block with 0-based lines; the intake log already lists them, 1-based.
     logging.getLogger("bibtexparser").setLevel(logging.ERROR)
     # WeasyPrint logs each layout step of every PDF (a brief each too); -v shows them, the default does not.
@@ -136,6 +133,10 @@ def build(config_path: Path, out_dir: Path | None, sentences: bool, review_works
         click.echo(briefs_summary(result.briefs, config.output_dir))
     for path in result.removed:
         click.echo(f"  removed (from an earlier build, not made this time): {path}")
+    if verbose:
+        from reporter.stages import LOG, format_times
+
+        LOG.info("%s", format_times(result.timings))
 
 
 @main.command("check-labels")

@@ -15,14 +15,34 @@ from reporter.errors import Problem, ReporterError
 from reporter.ingest import read_inputs
 from reporter.ingest.portfolio import conversion_for, funding_problems
 from reporter.records import IntakeResult
+from reporter.stages import stage, timed_run
 
 
-def run_intake(config: Config) -> IntakeResult:
-    """Read and enrich the inputs; the intake log accounts for every record read."""
-    intake = read_inputs(config.inputs, config.report.years, config.limits, config.base_dir,
-                         default_currency=config.funding.base_currency)
-    # Duplicates are found after reading every file, so the log can name the record kept instead.
-    return enrich(intake, config.report, config.departments)
+def run_intake(config: Config, remember_languages: bool = False) -> IntakeResult:
+    """Read and enrich the inputs; the intake log accounts for every record read.
+
+    With `remember_languages`, language detection results are read from and kept in the score
+    cache's file (when the cache is used), so a rebuild of the same list detects nothing again.
+    The intake check leaves it off: it writes nothing but its log.
+    """
+    n_files = len(config.inputs)
+    with stage("intake", f"Reading {n_files} input file{'s' if n_files != 1 else ''}"):
+        intake = read_inputs(config.inputs, config.report.years, config.limits, config.base_dir,
+                             default_currency=config.funding.base_currency)
+        with _language_memo(config, remember_languages) as memo:
+            # Duplicates are found after reading every file, so the log can name the record kept instead.
+            return enrich(intake, config.report, config.departments, languages=memo)
+
+
+def _language_memo(config: Config, wanted: bool):
+    import contextlib
+
+    if not wanted or not config.score.use_cache or config.score.cache is None:
+        return contextlib.nullcontext()
+    from reporter.enrich.language import default_detector_key
+    from reporter.enrich.language_memo import LanguageMemo
+
+    return LanguageMemo(config.score.cache, default_detector_key())
 
 
 @dataclass(frozen=True)
@@ -33,6 +53,7 @@ class RunResult:
     findings: object = None  # analyse.Findings
     removed: tuple[Path, ...] = ()  # files of an earlier build in the output folder that this one did not write
     briefs: object = None  # analyse.departments.DepartmentSplit, when department briefs were written
+    timings: dict[str, float] = field(default_factory=dict)  # seconds per stage (reporter/stages.py)
 
 
 def check_intake(config: Config, intake: IntakeResult) -> None:
@@ -86,6 +107,14 @@ def write_intake(config: Config, intake: IntakeResult, folder: Path | None = Non
 def run(config: Config, show_progress: bool = True, keep_sentences: bool = False,
         review_worksheet: bool = False) -> RunResult:
     """The whole job: intake, enrichment, scoring, analysis, rendering (and the review worksheet if asked)."""
+    import dataclasses
+
+    with timed_run() as times:
+        result = _run(config, show_progress, keep_sentences, review_worksheet)
+    return dataclasses.replace(result, timings=dict(times.seconds))
+
+
+def _run(config: Config, show_progress: bool, keep_sentences: bool, review_worksheet: bool) -> RunResult:
     import datetime as dt
 
     from reporter.analyse import analyse
@@ -93,43 +122,47 @@ def run(config: Config, show_progress: bool = True, keep_sentences: bool = False
     from reporter.score import load_scoring_parts, score
 
     started = dt.datetime.now(dt.timezone.utc).replace(microsecond=0)
-    intake = run_intake(config)
+    intake = run_intake(config, remember_languages=True)
     # Before the model loads: an input that gave nothing is a lost file, and a year with nothing in
     # it would compare as "no change" or a fall to 0%.
     check_intake(config, intake)
     # Scores are computed for every kept record of every year in one run, with one model,
     # framework and threshold: that is what makes year-on-year changes like-for-like.
-    parts = load_scoring_parts(config.score)
-    try:
-        if config.score.execution == "dask":
-            # Same score() per partition on the cluster's workers; the table comes back in record order.
-            from reporter.score.distributed import score_on_dask
+    with stage("model"):
+        parts = load_scoring_parts(config.score)
+    n_records = len(intake.records)
+    with stage("score", f"Scoring {n_records} publication{'s' if n_records != 1 else ''}"):
+        try:
+            if config.score.execution == "dask":
+                # Same score() per partition on the cluster's workers; the table comes back in record order.
+                from reporter.score.distributed import score_on_dask
 
-            scores = score_on_dask(
-                intake.records, parts, config.score,
-                keep_sentences=keep_sentences or review_worksheet, show_progress=show_progress,
-            )
-        else:
-            scores = score(
-                intake.records, parts.framework, parts.embedder, config.score, cache=parts.cache,
-                thresholds=parts.thresholds, keep_sentences=keep_sentences or review_worksheet,
-                show_progress=show_progress,
-            )
-    finally:
-        parts.close()
+                scores = score_on_dask(
+                    intake.records, parts, config.score,
+                    keep_sentences=keep_sentences or review_worksheet, show_progress=show_progress,
+                )
+            else:
+                scores = score(
+                    intake.records, parts.framework, parts.embedder, config.score, cache=parts.cache,
+                    thresholds=parts.thresholds, keep_sentences=keep_sentences or review_worksheet,
+                    show_progress=show_progress,
+                )
+        finally:
+            parts.close()
     goals = tuple((goal.code, goal.short_title) for goal in parts.framework.goals)
     # Reviewers overrule the machine before any figure is computed; validation below still
     # measures the machine's own decisions, since that is what its error rates describe.
     decided, overrides = _apply_review(config, intake, scores)
     general_mentions = scores.general_mentions.set_index("record_id")["n_general_mentions"]
-    findings = analyse(
-        intake.records, decided, goals, config.analysis,
-        config.report.reporting_year, config.report.comparison_years,
-        scores.thresholds, scores.policy,
-        general_mentions=general_mentions,
-        conversion=conversion_for(config, intake.records), funding=config.funding, noun=config.report.nouns,
-    )
-    findings = _with_human_judgement(config, intake, scores, findings, overrides)
+    with stage("analyse"):
+        findings = analyse(
+            intake.records, decided, goals, config.analysis,
+            config.report.reporting_year, config.report.comparison_years,
+            scores.thresholds, scores.policy,
+            general_mentions=general_mentions,
+            conversion=conversion_for(config, intake.records), funding=config.funding, noun=config.report.nouns,
+        )
+        findings = _with_human_judgement(config, intake, scores, findings, overrides)
     framework_info = parts.framework_info()
     model_info = parts.model_info()
     score_settings = {
@@ -167,7 +200,9 @@ def run(config: Config, show_progress: bool = True, keep_sentences: bool = False
 
         path = config.output_dir / "data" / "sentences.csv"
         extras["data/sentences.csv"] = write_csv(scores.sentences, path, root=config.output_dir)
-    written = {**render(inputs, config.report, config.output_dir, extra_outputs=extras), **extras}
+    cache = config.score.cache if config.score.use_cache else None  # also keeps drawn charts
+    with stage("report"):
+        written = {**render(inputs, config.report, config.output_dir, extra_outputs=extras, cache=cache), **extras}
     removed = remove_stale_outputs(config.output_dir, previous, written)
     return RunResult(intake=intake, written=written, scores=scores, findings=findings, removed=tuple(removed),
                      briefs=briefs)
@@ -311,7 +346,7 @@ def check_labels(config: Config, thresholds_path: Path | None = None, show_progr
     from reporter.render.atomic import write_text_atomic
     from reporter.score import load_scoring_parts, score
 
-    intake = run_intake(config)
+    intake = run_intake(config, remember_languages=True)
     parts = load_scoring_parts(config.score)
     try:
         labelled = _labelled_sample(config, intake, parts.framework.goal_codes)

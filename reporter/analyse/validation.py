@@ -28,6 +28,7 @@ from sklearn.metrics import (
 
 from reporter.analyse.decisions import check_policy, decide
 from reporter.analyse.labelled import LabelledSample, UnmatchedLabel
+from reporter.filemode import give_default_mode
 from reporter.records import require_columns
 
 MIN_SUPPORT = 3  # fewer labelled positives cannot tune a threshold; the goal keeps the global one
@@ -157,6 +158,7 @@ def write_thresholds(path: Path, thresholds: Mapping[str, float]) -> Path:
     text = "goal,threshold\n" + "".join(f"{goal},{float(value):.6g}\n" for goal, value in thresholds.items())
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
     try:
+        give_default_mode(fd)  # mkstemp makes it 0600
         with os.fdopen(fd, "w", encoding="utf-8", newline="") as handle:
             handle.write(text)
         os.replace(tmp, path)

@@ -16,6 +16,7 @@ from reporter.enrich.departments import add_departments
 from reporter.enrich.doi import normalise_dois
 from reporter.enrich.intake_log import add_flags, mark_merged
 from reporter.enrich.language import add_languages
+from reporter.enrich.language_memo import LanguageMemo
 from reporter.enrich.staff_map import read_staff_map
 from reporter.records import (
     ENRICHED_COLUMNS,
@@ -26,8 +27,12 @@ from reporter.records import (
 )
 
 
-def enrich(intake: IntakeResult, report: ReportConfig, departments: DepartmentConfig) -> IntakeResult:
-    """Normalise DOIs, merge duplicates, detect language, find countries and departments."""
+def enrich(intake: IntakeResult, report: ReportConfig, departments: DepartmentConfig,
+           languages: LanguageMemo | None = None) -> IntakeResult:
+    """Normalise DOIs, merge duplicates, detect language, find countries and departments.
+
+    `languages` holds earlier runs' detection results (the score cache's file), if kept.
+    """
     if not isinstance(intake, IntakeResult):
         raise TypeError(f"enrich: expected an IntakeResult, got {type(intake).__name__}")
     require_columns(intake.records, RECORD_COLUMNS, "enrich: records")
@@ -40,7 +45,7 @@ def enrich(intake: IntakeResult, report: ReportConfig, departments: DepartmentCo
     for record_id in bad_dois:
         flags[record_id].append("doi_not_recognised")
     records, merged = dedupe(records)
-    records, language_flags = add_languages(records)
+    records, language_flags = add_languages(records, memo=languages)
     records = add_countries(records, report.home_country)
     records, department_flags = add_departments(records, staff, departments.aliases)
     for extra in (language_flags, department_flags):

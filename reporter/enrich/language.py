@@ -13,6 +13,9 @@ import pandas as pd
 import pycountry
 from lingua import Language, LanguageDetector, LanguageDetectorBuilder
 
+from reporter.enrich.language_memo import LanguageMemo, detector_key
+from reporter.stages import LOG, stage
+
 #: Candidate languages. A fixed, short list keeps detection fast and stops rare languages
 #: winning on short titles. It covers European research output plus the languages of the
 #: largest non-European publishing countries; a text in a language not listed comes out as
@@ -74,13 +77,20 @@ def decide_language(confidences: Mapping[str, float], n_words: int) -> tuple[str
     return "", confidences.get("en", 0.0) >= ENGLISH_SHARE_OF_LEADER * top
 
 
+def default_detector_key() -> str:
+    """The memo key of `build_detector()`'s results (see language_memo.py)."""
+    return detector_key((lang.iso_code_639_1.name.lower() for lang in DETECTION_LANGUAGES), MAX_CHARS)
+
+
 def add_languages(
-    records: pd.DataFrame, detector_factory: Callable[[], LanguageDetector] = build_detector
+    records: pd.DataFrame, detector_factory: Callable[[], LanguageDetector] = build_detector,
+    memo: LanguageMemo | None = None,
 ) -> tuple[pd.DataFrame, dict[str, list[str]]]:
     """Return (new records with language and is_english, record id -> log flags).
 
-    The detector is built only when some record has no usable source language, so a run
-    whose exports all carry one never loads lingua's models.
+    The detector is built only when some record has no usable source language and no result
+    for its text is in `memo` (earlier runs' results of the same detector), so a run whose
+    exports all carry one, or a rebuild of the same list, never loads lingua's models.
     """
     out = records.copy()
     codes = records["language"].map(source_language_code)
@@ -89,9 +99,9 @@ def add_languages(
     todo = [i for i, code in enumerate(codes) if not code]
     if todo:
         texts = [_text(records.iloc[i]) for i in todo]
-        all_values = detector_factory().compute_language_confidence_values_in_parallel(texts)
-        for i, text, values in zip(todo, texts, all_values):
-            confidences = {v.language.iso_code_639_1.name.lower(): v.value for v in values}
+        with stage("language"):
+            all_confidences = _confidences(texts, detector_factory, memo)
+        for i, text, confidences in zip(todo, texts, all_confidences):
             results[i] = decide_language(confidences, len(text.split()))
             if not results[i][0]:
                 undetermined.add(i)
@@ -104,6 +114,21 @@ def add_languages(
         elif i in undetermined:
             flags[record_id] = ["language_undetermined"]
     return out, flags
+
+
+def _confidences(texts: list[str], detector_factory, memo: LanguageMemo | None) -> list[dict[str, float]]:
+    """Detector confidences per text (language code -> value): from the memo, else detected (and stored)."""
+    known = memo.get_many(texts) if memo is not None else {}
+    missing = [t for t in dict.fromkeys(texts) if t not in known]
+    if missing:
+        LOG.info("Detecting the language of %d publication%s", len(missing), "s" if len(missing) != 1 else "")
+        detected = detector_factory().compute_language_confidence_values_in_parallel(missing)
+        found = {t: {v.language.iso_code_639_1.name.lower(): v.value for v in values}
+                 for t, values in zip(missing, detected)}
+        if memo is not None:
+            memo.put_many(found)
+        known.update(found)
+    return [known[t] for t in texts]
 
 
 def _text(row: pd.Series) -> str:

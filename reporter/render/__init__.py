@@ -10,20 +10,24 @@ from pathlib import Path
 
 from reporter.render.atomic import write_bytes_atomic, write_text_atomic
 from reporter.render.branding import logo_path
+from reporter.render.chart_memo import remembered_charts
 from reporter.render.context import RenderInputs, ReportContext
 from reporter.render.exports import evidence_table, frame_to_csv, scores_table, write_intake_log
 from reporter.render.manifest import write_manifest
 from reporter.render.nouns import noun_in_html, report_nouns
 from reporter.render.themes import ThemeError, build_environment, load_theme
+from reporter.stages import stage
 
 __all__ = ["RenderInputs", "ReportContext", "ThemeError", "render"]
 
 
-def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[str, Path] | None = None) -> dict[str, Path]:
+def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[str, Path] | None = None,
+           cache: Path | None = None) -> dict[str, Path]:
     """Write report.html, report.pdf, report.xlsx and data/* into `output_dir`; return label -> path written.
 
     `report` is the `ReportConfig` (institution, title, reporting_year, theme, logo, accent_colour).
     `extra_outputs` are files the caller already wrote into the folder; the manifest lists them too.
+    `cache` is the score cache's file, where charts drawn before are found (chart_memo.py); None: none kept.
     """
     from reporter.render.html import render_html
     from reporter.render.pdf import render_pdf
@@ -35,13 +39,18 @@ def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[s
     output_dir = Path(output_dir)
     theme = load_theme(report.theme)
     env = build_environment(theme)
-    screen = build_context(inputs, report, theme, medium="screen")
+    with stage("charts", "Drawing the charts"), remembered_charts(cache):  # with the rest of the report context
+        screen = build_context(inputs, report, theme, medium="screen")
     printed = for_print(screen, theme, report)
     nouns = report_nouns(report)
-    html = noun_in_html(render_html(screen, env, theme), *nouns)
-    pdf, _refused = render_pdf(noun_in_html(render_html(printed, env, theme), *nouns), theme, logo_path(report))
-    data = _data_files(inputs)
-    workbook = build_workbook(inputs, report)
+    with stage("html"):
+        html = noun_in_html(render_html(screen, env, theme), *nouns)
+        printed_html = noun_in_html(render_html(printed, env, theme), *nouns)
+    with stage("pdf", "Laying out report.pdf"):
+        pdf, _refused = render_pdf(printed_html, theme, logo_path(report))
+    with stage("data"):
+        data = _data_files(inputs)
+        workbook = build_workbook(inputs, report)
 
     written: dict[str, Path] = {}
     data_dir = output_dir / "data"

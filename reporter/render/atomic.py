@@ -12,6 +12,7 @@ import tempfile
 from pathlib import Path
 
 from reporter.errors import OutputError, Problem
+from reporter.filemode import give_default_mode
 
 
 def ensure_inside(root: Path, path: Path) -> Path:
@@ -31,6 +32,7 @@ def write_bytes_atomic(path: Path, data: bytes, root: Path | None = None) -> Pat
     path.parent.mkdir(parents=True, exist_ok=True)
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
     try:
+        give_default_mode(fd)  # mkstemp makes it 0600; the report is as readable as any file the user makes
         with os.fdopen(fd, "wb") as handle:
             handle.write(data)
             handle.flush()

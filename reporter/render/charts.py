@@ -14,6 +14,7 @@ import altair as alt
 import pandas as pd
 from markupsafe import Markup
 
+from reporter.render.chart_memo import active_memo
 from reporter.render.context import Chart, GoalRow, GroupRow
 from reporter.render.filters import fmt_share
 from reporter.render.themes import Theme
@@ -74,7 +75,13 @@ def to_svg(chart: alt.TopLevelMixin, theme: Theme, alt_text: str, name: str) -> 
     )
     spec.pop("$schema", None)  # a URL only; vl-convert bundles its own schema
     spec["description"] = alt_text
-    svg = _user_space_gradients(_local_ids(vl_convert.vegalite_to_svg(spec), f"chart-{name}"))
+    memo = active_memo()
+    if memo is None:
+        drawn = vl_convert.vegalite_to_svg(spec)
+    else:  # a rebuild finds most charts drawn before (chart_memo.py)
+        key = memo.key(spec, _renderer_version(vl_convert))
+        drawn = memo.svg(key, lambda: vl_convert.vegalite_to_svg(spec))
+    svg = _user_space_gradients(_local_ids(drawn, f"chart-{name}"))
     lowered = svg.lower()
     # vl-convert escapes data values; this guards against a spec change that would embed active content.
     bad = [token for token in _FORBIDDEN_SVG if token in lowered]
@@ -83,6 +90,11 @@ def to_svg(chart: alt.TopLevelMixin, theme: Theme, alt_text: str, name: str) -> 
     # role/aria-label make the inline SVG an image with the text alternative for screen readers.
     svg = svg.replace("<svg ", f'<svg role="img" aria-label="{_attr(alt_text)}" ', 1)
     return Chart(svg=Markup(svg), alt=alt_text)
+
+
+def _renderer_version(vl_convert) -> str:
+    """What the SVG depends on besides the spec: the vl-convert release (with the Vega-Lite and fonts it bundles)."""
+    return f"vl-convert {vl_convert.__version__}"
 
 
 def _attr(text: str) -> str:

@@ -115,5 +115,15 @@ class SentenceEmbedder:
 
     def count_tokens(self, texts: list[str]) -> list[int]:
         """Word pieces per text, without the special markers."""
-        encoded = self._model.tokenizer(texts, add_special_tokens=False, truncation=False)["input_ids"]
-        return [len(ids) for ids in encoded]
+        return count_word_pieces(self._model.tokenizer, texts)
+
+
+def count_word_pieces(tokenizer, texts: list[str]) -> list[int]:
+    """Word pieces per text, without the special markers, counted in full.
+
+    Counting is how texts longer than the model's input are found (sentences.fit_to_model splits
+    them before encoding), so the tokenizer's warning about sequences over its maximum would be
+    wrong here: verbose=False turns it off for this call only.
+    """
+    encoded = tokenizer(texts, add_special_tokens=False, truncation=False, verbose=False)["input_ids"]
+    return [len(ids) for ids in encoded]

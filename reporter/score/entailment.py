@@ -13,7 +13,7 @@ from pathlib import Path
 import numpy as np
 
 from reporter.errors import ModelError, Problem
-from reporter.score.embedder import ModelInfo, model_checksum
+from reporter.score.embedder import ModelInfo, count_word_pieces, model_checksum
 
 HYPOTHESIS = "This text is about {title}."
 
@@ -55,8 +55,7 @@ class EntailmentScorer:
 
     def count_tokens(self, texts: list[str]) -> list[int]:
         # Leave room for the hypothesis (about a dozen word pieces).
-        encoded = self._tokenizer(texts, add_special_tokens=False, truncation=False)["input_ids"]
-        return [len(ids) + 16 for ids in encoded]
+        return [n + 16 for n in count_word_pieces(self._tokenizer, texts)]
 
     def entailment(self, sentences: list[str], titles: list[str]) -> np.ndarray:
         """(n_sentences, n_goals) entailment probabilities."""

@@ -46,13 +46,14 @@ def int8_run(tmp_path_factory):
     patch.setattr(socket.socket, "connect", refuse)
     try:
         parts = load_scoring_parts(cfg)
-        threads_while_loaded = parts.embedder.threads
+        try:
+            threads_while_loaded = parts.embedder.threads
+            # The export and the ONNX session are made on first use, inside scoring.
+            result = score(_records(), parts.framework, parts.embedder, cfg, cache=parts.cache, show_progress=False)
+        finally:
+            parts.close()
     finally:
         patch.undo()
-    try:
-        result = score(_records(), parts.framework, parts.embedder, cfg, cache=parts.cache, show_progress=False)
-    finally:
-        parts.close()
     return parts, result, cache_path, threads_while_loaded
 
 

@@ -90,3 +90,63 @@ def test_detection_languages_have_distinct_iso_639_1_codes():
     codes = [lang.iso_code_639_1.name.lower() for lang in DETECTION_LANGUAGES]
     assert "en" in codes and len(set(codes)) == len(codes)
     assert all(pycountry.languages.get(alpha_2=code) is not None for code in codes)
+
+
+def _mixed():
+    return records(
+        record("m:1", language="", title="Die Wirkung von Hochwasser auf kleine Gemeinden",
+               abstract="Wir untersuchen, wie sich wiederkehrende Hochwasser auf die Finanzen und das Leben "
+               "in kleinen Gemeinden auswirken, und vergleichen dafür zwanzig Orte an zwei Flüssen."),
+        record("m:2", language="", title="Flood losses in small towns",
+               abstract="We study how repeated floods change the budgets and daily life of small towns."),
+        record("m:3", language="", title="Smart grids"),
+    )
+
+
+def test_a_rebuild_reads_detection_results_back_and_decides_the_same(small_detector, tmp_path):
+    from reporter.enrich.language_memo import LanguageMemo
+
+    path = tmp_path / "cache.sqlite"
+    with LanguageMemo(path, "small-detector") as memo:
+        first = add_languages(_mixed(), detector_factory=lambda: small_detector, memo=memo)
+
+    def refuse():
+        raise AssertionError("the detector was built although every text was detected before")
+
+    with LanguageMemo(path, "small-detector") as memo:
+        again = add_languages(_mixed(), detector_factory=refuse, memo=memo)
+    assert again[0].equals(first[0]) and again[1] == first[1]
+    # The same results as without any memo.
+    plain = add_languages(_mixed(), detector_factory=lambda: small_detector)
+    assert plain[0].equals(first[0]) and plain[1] == first[1]
+
+
+def test_only_new_texts_are_detected_and_another_detector_reads_nothing(small_detector, tmp_path):
+    from reporter.enrich.language_memo import LanguageMemo
+
+    path = tmp_path / "cache.sqlite"
+    with LanguageMemo(path, "small-detector") as memo:
+        add_languages(_mixed().iloc[:2], detector_factory=lambda: small_detector, memo=memo)
+    asked: list[list[str]] = []
+
+    class Counting:
+        def compute_language_confidence_values_in_parallel(self, texts):
+            asked.append(list(texts))
+            return small_detector.compute_language_confidence_values_in_parallel(texts)
+
+    with LanguageMemo(path, "small-detector") as memo:
+        add_languages(_mixed(), detector_factory=Counting, memo=memo)
+    assert asked == [["Smart grids"]]
+    with LanguageMemo(path, "another-detector") as memo:
+        assert memo.get_many(["Smart grids"]) == {}
+
+
+def test_the_default_detector_key_names_lingua_and_the_candidates():
+    from reporter.enrich.language import MAX_CHARS, default_detector_key
+
+    from importlib.metadata import version
+
+    lingua, mode, candidates, chars = default_detector_key().split(":")
+    assert lingua == f"lingua-{version('lingua-language-detector')}" and mode == "high-accuracy"
+    assert candidates.split(",") == sorted(lang.iso_code_639_1.name.lower() for lang in DETECTION_LANGUAGES)
+    assert chars == str(MAX_CHARS)
