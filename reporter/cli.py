@@ -27,8 +27,6 @@ def _setup_logging(verbose: int, quiet: bool) -> None:
     click.get_current_context().with_resource(console(verbose, quiet))
     # bibtexparser logs every failed block with 0-based lines; the intake log already lists them, 1-based.
     logging.getLogger("bibtexparser").setLevel(logging.ERROR)
-    # WeasyPrint logs each layout step of every PDF (a brief each too); -v shows them, the default does not.
-    logging.getLogger("weasyprint.progress").setLevel(logging.INFO if verbose else logging.WARNING)
 
 
 def _with_execution(config, execution: str | None, scheduler: str | None):
