@@ -5,6 +5,8 @@ from __future__ import annotations
 import codecs
 
 import pytest
+from hypothesis import given
+from hypothesis import strategies as st
 
 from reporter.ingest.text import clean_value, cut, decode_bytes
 
@@ -78,3 +80,17 @@ def test_clean_value_composes_accents() -> None:
 def test_cut_reports_whether_it_cut() -> None:
     assert cut("abcdef", 10) == ("abcdef", False)
     assert cut("abc def", 4) == ("abc", True)
+
+
+@given(st.text(alphabet=st.characters(codec=None), max_size=40))
+def test_clean_value_drops_exactly_the_invisible_categories(raw: str) -> None:
+    """Unicode general categories (unicodedata): no Cc/Cf/Cs/Co/Cn character survives, every other
+    one does, whether or not the text takes the printable fast path."""
+    import unicodedata
+
+    dropped = {"Cc", "Cf", "Cs", "Co", "Cn"}
+    cleaned = clean_value(raw, keep_paragraphs=True)
+    assert not any(unicodedata.category(ch) in dropped and ch not in "\n\t" for ch in cleaned)
+    composed = unicodedata.normalize("NFC", raw)
+    kept = [ch for ch in composed if unicodedata.category(ch) not in dropped and not ch.isspace()]
+    assert [ch for ch in cleaned if not ch.isspace()] == kept
