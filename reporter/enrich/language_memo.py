@@ -12,10 +12,11 @@ from __future__ import annotations
 
 import hashlib
 import json
-import sqlite3
 from importlib.metadata import PackageNotFoundError, version
 from pathlib import Path
 from typing import Iterable, Mapping
+
+from reporter.memo_db import connect
 
 _SCHEMA = """
 CREATE TABLE IF NOT EXISTS languages (
@@ -47,12 +48,7 @@ class LanguageMemo:
     def __init__(self, path: Path, detector: str):
         self.path = Path(path)
         self.detector = detector
-        self.path.parent.mkdir(parents=True, exist_ok=True)
-        self._db = sqlite3.connect(self.path, timeout=60)
-        # The embedding cache in the same file runs in WAL mode; so does this connection.
-        self._db.execute("PRAGMA journal_mode=WAL")
-        self._db.execute(_SCHEMA)
-        self._db.commit()
+        self._db = connect(self.path, _SCHEMA)
 
     def get_many(self, texts: Iterable[str]) -> dict[str, dict[str, float]]:
         """Stored confidences (language code -> value) for the texts seen before."""

@@ -6,6 +6,7 @@ writes each file atomically, so a failing theme leaves no half-written report.
 
 from __future__ import annotations
 
+import contextlib
 from pathlib import Path
 
 from reporter.render.atomic import write_bytes_atomic, write_text_atomic
@@ -46,8 +47,8 @@ def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[s
     with stage("html"):
         html = noun_in_html(render_html(screen, env, theme), *nouns)
         printed_html = noun_in_html(render_html(printed, env, theme), *nouns)
-    with stage("pdf", "Laying out report.pdf"):
-        pdf, _refused = render_pdf(printed_html, theme, logo_path(report))
+    with stage("pdf", "Laying out report.pdf"), _pdf_memo(cache) as memo:
+        pdf, _refused = render_pdf(printed_html, theme, logo_path(report), memo, volatile=(inputs.generated_at,))
     with stage("data"):
         data = _data_files(inputs)
         workbook = build_workbook(inputs, report)
@@ -64,6 +65,18 @@ def render(inputs: RenderInputs, report, output_dir: Path, extra_outputs: dict[s
     written["report.html"] = write_text_atomic(output_dir / "report.html", html, root=output_dir)
     written["report.pdf"] = write_bytes_atomic(output_dir / "report.pdf", pdf, root=output_dir)
     return written
+
+
+@contextlib.contextmanager
+def _pdf_memo(cache: Path | None):
+    """Pages of report.pdf kept in the score cache's file (pdf_memo.py); None: nothing kept."""
+    if cache is None:
+        yield None
+        return
+    from reporter.render.pdf_memo import PdfMemo
+
+    with PdfMemo(cache) as memo:
+        yield memo
 
 
 def _data_files(inputs: RenderInputs) -> dict[str, str]:

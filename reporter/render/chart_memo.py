@@ -14,10 +14,11 @@ import contextlib
 import contextvars
 import hashlib
 import json
-import sqlite3
 import time
 from pathlib import Path
 from typing import Callable, Iterator
+
+from reporter.memo_db import connect
 
 KEEP = 200  # charts kept: every chart of several reports, a few MB
 
@@ -36,11 +37,7 @@ class ChartMemo:
 
     def __init__(self, path: Path):
         self.path = Path(path)
-        self.path.parent.mkdir(parents=True, exist_ok=True)
-        self._db = sqlite3.connect(self.path, timeout=60)
-        self._db.execute("PRAGMA journal_mode=WAL")  # as the embedding cache in the same file
-        self._db.execute(_SCHEMA)
-        self._db.commit()
+        self._db = connect(self.path, _SCHEMA)
 
     @staticmethod
     def key(spec: dict, renderer_version: str) -> bytes:

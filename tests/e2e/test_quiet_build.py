@@ -4,6 +4,7 @@ file written, and what a rebuild from the cache leaves unloaded (issue 16, items
 from __future__ import annotations
 
 import os
+import re
 import stat
 import subprocess
 import sys
@@ -103,3 +104,24 @@ def test_a_rebuild_from_the_cache_loads_neither_the_model_nor_the_language_detec
     assert "13 publications' results reused" in warm_verbose.stdout
     # lingua itself imports in milliseconds; its language models load only to detect.
     assert "Detecting the language" not in warm_verbose.stderr
+
+
+def test_a_rebuild_prints_the_same_pdf_from_pages_kept_in_the_cache(project, cold, warm_verbose):
+    """The warm build lays out only the cover (its build time changed) and keeps every section's pages
+    (render/pdf_parts.py); a reader sees the cold build's report, page for page, with the same links
+    and bookmarks."""
+    from pypdf import PdfReader
+
+    def read(out: str) -> dict:
+        reader = PdfReader(project / out / "report.pdf")
+        pages = [re.sub(r"Made on \S+", "Made on <time>", p.extract_text()) for p in reader.pages]
+        return {
+            "pages": pages,
+            "dests": {n: reader.get_destination_page_number(d) for n, d in reader.named_destinations.items()},
+            "outline": [item.title for item in reader.outline if not isinstance(item, list)],
+        }
+
+    cold_pdf, warm_pdf = read("out-cold"), read("out-warm")
+    assert warm_pdf == cold_pdf
+    assert len(cold_pdf["pages"]) > 10 and "Page 3 of" in cold_pdf["pages"][2]
+    assert cold_pdf["dests"]["method"] > cold_pdf["dests"]["at-a-glance"] >= 1

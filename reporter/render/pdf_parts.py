@@ -1,0 +1,179 @@
+"""The printed report in parts that each start on a page of their own, laid out only when they change.
+
+A rebuild after a small edit (a department alias, say) prints most sections exactly as before. The
+report is split at its top-level sections; a run of sections whose first one begins on a page of its
+own (a forced page break, nothing of the part before on that page) is a *part*. Each build lays out
+one *sparse* document: the real cover and contents, the parts that changed, and, in place of each
+part whose pages are kept from an earlier build, as many empty pages as it fills, holding its anchors
+where they fall. Page numbers, "page N of M", the contents' page references and running heads
+are therefore those of the whole report, and the pages of kept parts are taken from their earlier
+PDF (pdf_join.py puts the pages together).
+
+What a kept part's pages depend on is in its key: the part's HTML, the document head and cover with
+the build time taken out, the closing tags, the theme files and logo, WeasyPrint's version, the page
+it starts on, the number of pages, and the pages of the anchors it links to. A theme must therefore
+not carry the build time, or a CSS counter other than the page counters, from the cover into the
+sections; the default and compact themes do neither (the compact theme has no forced breaks, so its
+report is one part, laid out whole each time).
+
+Anything unexpected (a part that fills more or fewer pages than before, a section sharing a page
+with the part before) makes the build lay out the whole document, as a first build does.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import re
+from dataclasses import dataclass, field
+
+SECTION_OPEN = re.compile(r'<section class="section[ "]')
+_FORCED = {"page", "left", "right", "recto", "verso"}
+_HREF = re.compile(r'href="#([^"]+)"')
+_ID = re.compile(r'\sid="([^"]+)"')
+STUB_CLASS = "waymark-print-stub"
+VOLATILE_TOKEN = "\x00build-time\x00"
+
+
+@dataclass(frozen=True)
+class PrintedReport:
+    """The printed HTML cut into the text before the first section, the sections, and the rest."""
+
+    prefix: str
+    sections: tuple[str, ...]
+    suffix: str
+
+    @property
+    def html(self) -> str:
+        return self.prefix + "".join(self.sections) + self.suffix
+
+
+def split_report(html: str) -> PrintedReport | None:
+    """None when the HTML has no top-level `<section class="section ...">` inside `<main>`."""
+    starts = [m.start() for m in SECTION_OPEN.finditer(html)]
+    end = html.rfind("</main>")
+    if not starts or end < starts[-1]:
+        return None
+    bounds = starts + [end]
+    return PrintedReport(html[: starts[0]], tuple(html[a:b] for a, b in zip(bounds, bounds[1:])), html[end:])
+
+
+def digest(*pieces: object) -> bytes:
+    h = hashlib.sha256()
+    for piece in pieces:
+        h.update(piece if isinstance(piece, bytes) else str(piece).encode("utf-8", "surrogatepass"))
+        h.update(b"\x00\x1f")
+    return h.digest()
+
+
+@dataclass
+class Part:
+    """Sections [first, last] of the report; part 0 is the cover and contents (no sections)."""
+
+    first: int
+    last: int
+    html: str
+    layout_key: bytes
+    facts: dict | None = None  # {"pages": [{"height", "anchors": {id: [x, y]}, "bookmarks": [...]}, ...]}
+    start: int = 0  # 0-based index of its first page in the whole report
+    rendered: bool = False
+    source: tuple[bytes, int] | None = field(default=None)  # (PDF blob, first page index in it)
+
+    @property
+    def n_pages(self) -> int:
+        return len(self.facts["pages"]) if self.facts else 0
+
+    def anchor_ids(self) -> list[str]:
+        return _ID.findall(self.html)
+
+    def links_out(self) -> list[str]:
+        own = set(self.anchor_ids())
+        return sorted({name for name in _HREF.findall(self.html) if name not in own})
+
+
+def section_heads(report: PrintedReport) -> tuple[str, ...]:
+    """What decides whether a section forces a page break: its opening tag and first heading."""
+    heads = []
+    for section in report.sections:
+        close = section.find("</h2>")
+        heads.append(section[: close if 0 <= close < 600 else 300])
+    return tuple(heads)
+
+
+def stub_pages(pages: list[list[str]]) -> str:
+    """Empty pages, each holding the given anchors (ids) at its top."""
+    style = "break-before: page; height: 0; margin: 0; padding: 0; border: 0"
+    return "".join(f'<div class="{STUB_CLASS}" style="{style}">' + "".join(f'<span id="{a}"></span>' for a in ids)
+                   + "</div>" for ids in pages)
+
+
+def sparse_document(report: PrintedReport, parts: list[Part]) -> str:
+    """The cover and contents, the parts to lay out, and empty pages in place of the parts kept."""
+    pieces = [report.prefix]
+    for part in parts[1:]:
+        if part.rendered:
+            pieces.append(part.html)
+        else:
+            pages: list[list[str]] = [[] for _ in range(part.n_pages)]
+            for name, (offset, _x, _y) in part_anchor_pages(part).items():
+                pages[offset].append(name)
+            pieces.append(stub_pages(pages))
+    pieces.append(report.suffix)
+    return "".join(pieces)
+
+
+def part_anchor_pages(part: Part) -> dict[str, tuple[int, float, float]]:
+    found: dict[str, tuple[int, float, float]] = {}
+    for offset, page in enumerate(part.facts["pages"]):
+        for name, (x, y) in page["anchors"].items():
+            found.setdefault(name, (offset, x, y))
+    return found
+
+
+def page_facts(page) -> dict:
+    """What the report needs of a laid-out WeasyPrint page to join it with others (CSS px)."""
+    return {
+        "height": page.height,
+        "anchors": {name: [values[0], values[1]] for name, values in page.anchors.items()},
+        "bookmarks": [[level, label, x, y, state] for level, label, (x, y), state in page.bookmarks],
+    }
+
+
+def section_pages(document, html_root, indices: list[int]) -> tuple[list[set[int]], dict[int, bool]] | None:
+    """For each page, the sections with content on it (-1: the cover and contents, or a stub), and for
+    each section whether its box forces a page break before it. `indices` are the report's section
+    numbers of the sections the document holds, in order. None: they were not found."""
+    owner: dict[int, int] = {}
+    parent = {id(child): element for element in html_root.iter() for child in element}
+    sections = [el for el in html_root.iter("section") if SECTION_OPEN.match(f'<section class="{el.get("class")}"')]
+    # Top-level sections only: a section nested in another belongs to it.
+    nested = {id(inner) for outer in sections for inner in outer.iter("section") if inner is not outer}
+    sections = [el for el in sections if id(el) not in nested]
+    if len(sections) != len(indices):
+        return None
+    for index, section in zip(indices, sections):
+        for element in section.iter():
+            owner[id(element)] = index
+    by_index = dict(zip(indices, sections))
+    containers: set[int] = set()  # html, body, main: their boxes are on every page
+    element = parent.get(id(sections[0])) if sections else None
+    while element is not None:
+        containers.add(id(element))
+        element = parent.get(id(element))
+    forced = dict.fromkeys(indices, False)
+    seen: set[int] = set()
+    pages: list[set[int]] = []
+    for page in document.pages:
+        present: set[int] = set()
+        for box in page._page_box.descendants():
+            element = getattr(box, "element", None)
+            if element is None or id(element) in containers:
+                continue
+            index = owner.get(id(element), -1)
+            present.add(index)
+            if index >= 0 and index not in seen and element is by_index[index]:
+                seen.add(index)
+                children = [child for child in getattr(box, "children", ()) if getattr(child, "element", None) is not None]
+                styles = [box.style, children[0].style] if children else [box.style]
+                forced[index] = any(style["break_before"] in _FORCED for style in styles)
+        pages.append(present)
+    return pages, forced
