@@ -230,9 +230,11 @@ class PartsBuild:
         return self._join(parts, blob)
 
     def _remember(self, parts: list[Part], blob: bytes, total: int, rendered: list[Part]) -> None:
+        self.memo.put_facts(parts[0].layout_key, parts[0].facts)
+        if not rendered:  # only the cover, whose build time is new each time: nothing to keep
+            return
         blob_key = digest("pdf", blob)
         self.memo.put_part(blob_key, blob)
-        self.memo.put_facts(parts[0].layout_key, parts[0].facts)
         for part in rendered:
             part.source = (blob, part.start)
             self.memo.put_facts(part.layout_key, part.facts)

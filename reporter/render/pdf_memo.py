@@ -5,7 +5,9 @@ PDF layout is most of a rebuild's time, and a rebuild mostly prints the same sec
 
 - `pdf_layouts`: what a part's layout is, whatever page it starts on (its number of pages, where
   its anchors and bookmarks fall), under a hash of everything its layout depends on;
-- `pdf_parts`: the part's PDF pages, under that hash plus the page numbers printed on them.
+- `pdf_parts`: the PDFs the parts' pages are taken from, one per build that laid out a section;
+  `pdf_layouts` also says, under the part's hash plus the page numbers printed on it, which PDF and
+  page its pages are.
 
 Fonts installed on the system later are not noticed (delete the cache file to lay out afresh), as
 for the charts. Only the most recently used rows are kept (KEEP_*), so the file stays small.
@@ -20,7 +22,7 @@ from pathlib import Path
 from reporter.memo_db import connect
 
 KEEP_LAYOUTS = 400  # a few hundred bytes each
-KEEP_PARTS = 120  # up to a few hundred KB each: the parts of several reports and briefs
+KEEP_PARTS = 24  # PDFs of up to a few hundred KB, at most one per build: the last 24 builds' layouts
 
 _SCHEMA = (
     "CREATE TABLE IF NOT EXISTS pdf_layouts (key BLOB PRIMARY KEY, facts TEXT NOT NULL, used_at REAL NOT NULL)",

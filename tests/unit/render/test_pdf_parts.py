@@ -114,12 +114,14 @@ def test_rebuilds_lay_out_only_what_changed_and_read_as_the_whole_document(tmp_p
     with PdfMemo(tmp_path / "cache.sqlite") as memo:
         built(report(), theme, memo, "2026-01-01T00:00:00", caplog)
 
-        # Only the build time differs: the cover is laid out, every section kept.
+        # Only the build time differs: the cover is laid out, every section kept, no PDF stored.
+        stored = memo._db.execute("SELECT COUNT(*) FROM pdf_parts").fetchone()[0]
         again = report(made="2026-01-02T09:30:00")
         result, log = built(again, theme, memo, "2026-01-02T09:30:00", caplog)
         assert result == whole(again, theme)
         assert "Made on 2026-01-02T09:30:00" in result["pages"][0]
         assert log == ["report.pdf: laying out 0 of 4 parts"]  # glance and profile share a page: one part
+        assert memo._db.execute("SELECT COUNT(*) FROM pdf_parts").fetchone()[0] == stored == 1
 
         # One section's words change, not its number of pages: that part alone is laid out.
         edited = report(made="2026-01-03T00:00:00", sections={"departments": (6, "beta")})
