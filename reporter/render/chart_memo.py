@@ -20,11 +20,12 @@ import contextvars
 import hashlib
 import json
 import pickle
-import sqlite3
 import time
 from importlib.metadata import version
 from pathlib import Path
 from typing import Callable, Iterator
+
+from reporter.memo_file import active, connect
 
 KEEP = 200  # charts kept: every chart of several reports, a few MB
 
@@ -51,11 +52,7 @@ class ChartMemo:
 
     def __init__(self, path: Path):
         self.path = Path(path)
-        self.path.parent.mkdir(parents=True, exist_ok=True)
-        self._db = sqlite3.connect(self.path, timeout=60)
-        self._db.execute("PRAGMA journal_mode=WAL")  # as the embedding cache in the same file
-        self._db.executescript(_SCHEMA)
-        self._db.commit()
+        self._db = connect(self.path, _SCHEMA)
         self._code: bytes | None = None  # fingerprint of the drawing code, made on first use
 
     @staticmethod
@@ -119,13 +116,8 @@ def remembered_charts(path: Path | None) -> Iterator[None]:
     if path is None:
         yield
         return
-    memo = ChartMemo(path)
-    token = _ACTIVE.set(memo)
-    try:
+    with active(_ACTIVE, ChartMemo(path)):
         yield
-    finally:
-        _ACTIVE.reset(token)
-        memo.close()
 
 
 def active_memo() -> ChartMemo | None:
