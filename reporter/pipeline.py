@@ -21,28 +21,37 @@ from reporter.stages import stage, timed_run
 def run_intake(config: Config, remember_languages: bool = False) -> IntakeResult:
     """Read and enrich the inputs; the intake log accounts for every record read.
 
-    With `remember_languages`, language detection results are read from and kept in the score
-    cache's file (when the cache is used), so a rebuild of the same list detects nothing again.
-    The intake check leaves it off: it writes nothing but its log.
+    With `remember_languages`, language detection results and LaTeX decodings are read from and
+    kept in the score cache's file (when the cache is used), so a rebuild of the same list detects
+    and decodes nothing again. The intake check leaves it off: it writes nothing but its log.
     """
+    from reporter.ingest.latex_memo import remembered_latex
+
     n_files = len(config.inputs)
     with stage("intake", f"Reading {n_files} input file{'s' if n_files != 1 else ''}"):
-        intake = read_inputs(config.inputs, config.report.years, config.limits, config.base_dir,
-                             default_currency=config.funding.base_currency)
+        with remembered_latex(_memo_file(config, remember_languages)):
+            intake = read_inputs(config.inputs, config.report.years, config.limits, config.base_dir,
+                                 default_currency=config.funding.base_currency)
         with _language_memo(config, remember_languages) as memo:
             # Duplicates are found after reading every file, so the log can name the record kept instead.
             return enrich(intake, config.report, config.departments, languages=memo)
 
 
+def _memo_file(config: Config, wanted: bool) -> Path | None:
+    """The score cache's file when intake may keep its results there, else None."""
+    return config.score.cache if wanted and config.score.use_cache else None
+
+
 def _language_memo(config: Config, wanted: bool):
     import contextlib
 
-    if not wanted or not config.score.use_cache or config.score.cache is None:
+    path = _memo_file(config, wanted)
+    if path is None:
         return contextlib.nullcontext()
     from reporter.enrich.language import default_detector_key
     from reporter.enrich.language_memo import LanguageMemo
 
-    return LanguageMemo(config.score.cache, default_detector_key())
+    return LanguageMemo(path, default_detector_key())
 
 
 @dataclass(frozen=True)

@@ -3,8 +3,10 @@ Benjamini-Hochberg adjustment and percentile bootstrap intervals for means.
 
 Wilson and Newcombe are short closed forms written out here so they work on arrays,
 on weighted (non-integer) counts and on empty groups (nan, no warnings); the
-reference tests check them against statsmodels. BH is scipy's; bootstrap draws the
-same resamples as scipy.stats.bootstrap for the same Generator state.
+reference tests check them against statsmodels. The score test and BH repeat the
+operations of statsmodels and scipy.stats step for step (the same floats; importing
+scipy.stats costs about a second a build); bootstrap draws the same resamples as
+scipy.stats.bootstrap for the same Generator state.
 """
 
 from __future__ import annotations
@@ -12,8 +14,7 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from scipy.stats import false_discovery_control, norm
-from statsmodels.stats.proportion import test_proportions_2indep
+from scipy.special import ndtr, ndtri
 
 # Resample indices drawn at once are capped (about 32 MB of int64) so a large corpus
 # does not need an n_resamples x n index matrix in memory.
@@ -23,7 +24,7 @@ _MAX_BATCH_CELLS = 2**22
 def _z(confidence: float) -> float:
     if not 0 < confidence < 1:
         raise ValueError(f"confidence must lie strictly between 0 and 1, got {confidence}")
-    return float(norm.ppf(0.5 + confidence / 2))
+    return float(ndtri(0.5 + confidence / 2))  # scipy.stats.norm.ppf
 
 
 def _scalar_or_array(value: np.ndarray, scalar: bool) -> float | np.ndarray:
@@ -85,13 +86,13 @@ def difference_p_value(x1: float, n1: float, x2: float, n2: float) -> float:
     pooled = (x1 + x2) / (n1 + n2)
     if pooled in (0.0, 1.0):
         return 1.0
-    # statsmodels divides by a group's own variance, zero when a group is all 0 or all 1; the
-    # score statistic it returns is still right (pooled variance), so only the warning is silenced.
-    with np.errstate(divide="ignore", invalid="ignore"):
-        result = test_proportions_2indep(
-            x1, n1, x2, n2, value=0, method="score", compare="diff", alternative="two-sided", correction=False
-        )
-    return float(result.pvalue)
+    # statsmodels' score_test_proportions_2indep at diff 0 (both proportions under H0 the pooled
+    # one), then _zstat_generic2: z = diff / sqrt(var), p = 2 * norm.sf(|z|) = 2 * ndtr(-|z|).
+    count1, nobs1, count2, nobs2 = (np.asarray(v) for v in (x1, n1, x2, n2))
+    prop = (count1 + count2) / (nobs1 + nobs2)
+    var = prop * (1 - prop) / nobs1 + prop * (1 - prop) / nobs2
+    z = (count1 / nobs1 - count2 / nobs2 - 0) / np.sqrt(var)
+    return float(ndtr(-np.abs(z)) * 2)
 
 
 def bh_adjust(pvalues) -> np.ndarray:
@@ -103,8 +104,22 @@ def bh_adjust(pvalues) -> np.ndarray:
     adjusted = np.full(p.shape, np.nan)
     present = ~np.isnan(p)
     if present.any():
-        adjusted[present] = false_discovery_control(p[present], method="bh")
+        adjusted[present] = _benjamini_hochberg(p[present])
     return adjusted
+
+
+def _benjamini_hochberg(p: np.ndarray) -> np.ndarray:
+    """scipy.stats.false_discovery_control(p, method="bh") for 1-D p in [0, 1], operation for operation."""
+    m = p.shape[-1]
+    if m <= 1:
+        return p
+    order = np.argsort(p, axis=-1)
+    ps = np.take_along_axis(p, order, axis=-1)
+    ps *= m / np.arange(1, m + 1, dtype=ps.dtype)
+    # Each p-value becomes the smallest adjusted one at or after its rank.
+    np.minimum.accumulate(ps[..., ::-1], out=ps[..., ::-1], axis=-1)
+    np.put_along_axis(ps, order, values=ps.copy(), axis=-1)
+    return np.clip(ps, 0.0, 1.0)
 
 
 def bootstrap_mean_interval(

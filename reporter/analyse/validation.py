@@ -1,7 +1,7 @@
 """Machine decisions vs a labelled sample -> `Validation`: per-goal metrics, agreement, a goal matrix,
 precision/recall across thresholds, and recommended per-goal thresholds.
 
-Metrics are scikit-learn's. The decisions validated are the `is_aligned` column as given: pass the
+Metrics are scikit-learn's definitions, computed in `metrics.py`. The decisions validated are the `is_aligned` column as given: pass the
 machine's table (before review overrides) to measure the method rather than the reviewers.
 """
 
@@ -10,24 +10,15 @@ from __future__ import annotations
 import math
 import os
 import tempfile
-import warnings
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Mapping
 
 import numpy as np
 import pandas as pd
-from sklearn.exceptions import UndefinedMetricWarning
-from sklearn.metrics import (
-    accuracy_score,
-    cohen_kappa_score,
-    hamming_loss,
-    multilabel_confusion_matrix,
-    precision_recall_fscore_support,
-)
-
 from reporter.analyse.decisions import check_policy, decide
 from reporter.analyse.labelled import LabelledSample, UnmatchedLabel
+from reporter.analyse.metrics import cohen_kappa, confusion_counts, exact_match_share, hamming_loss, precision_recall_f1
 from reporter.filemode import give_default_mode
 from reporter.records import require_columns
 
@@ -217,26 +208,21 @@ def _matrices(scores_table: pd.DataFrame, sample: LabelledSample, codes: tuple[s
 
 
 def _prf(truth: np.ndarray, predicted: np.ndarray, average):
-    # zero_division=NaN: a goal nobody labelled or nothing predicted has no precision/recall, not 0,
-    # and sklearn leaves such goals out of the macro average.
+    # A goal nobody labelled or nothing predicted has no precision/recall (NaN), not 0,
+    # and is left out of the macro average.
     if truth.size == 0:
         return np.full((3, truth.shape[1]), np.nan) if average is None else (np.nan,) * 3
-    p, r, f, _ = precision_recall_fscore_support(truth, predicted, average=average, zero_division=np.nan)
-    return p, r, f
+    return precision_recall_f1(truth, predicted, average)
 
 
 def _kappa(truth: np.ndarray, predicted: np.ndarray) -> float:
-    if truth.size == 0:
-        return np.nan
-    with warnings.catch_warnings():
-        # Undefined when both raters use one category only; NaN says so.
-        warnings.simplefilter("ignore", UndefinedMetricWarning)
-        return float(cohen_kappa_score(truth, predicted, labels=[False, True], replace_undefined_by=np.nan))
+    # Undefined (NaN) when both raters use one category only.
+    return np.nan if truth.size == 0 else cohen_kappa(truth, predicted)
 
 
 def _per_goal(truth, predicted, codes, thresholds) -> pd.DataFrame:
     precision, recall, f1 = _prf(truth, predicted, None)
-    counts = multilabel_confusion_matrix(truth, predicted) if len(truth) else np.zeros((len(codes), 2, 2), int)
+    counts = confusion_counts(truth, predicted) if len(truth) else np.zeros((len(codes), 2, 2), int)
     return pd.DataFrame({
         "goal": codes,
         "threshold": thresholds,
@@ -258,12 +244,12 @@ def _averages(truth, predicted) -> dict:
 
 def _agreement(truth, predicted) -> dict:
     n = len(truth)
-    exact = float(accuracy_score(truth, predicted)) if n else np.nan
+    exact = exact_match_share(truth, predicted) if n else np.nan
     return {
         "n": n,
         "n_exact": int((truth == predicted).all(axis=1).sum()),
         "exact_match": exact,
-        "hamming": 1.0 - float(hamming_loss(truth, predicted)) if n else np.nan,
+        "hamming": 1.0 - hamming_loss(truth, predicted) if n else np.nan,
     }
 
 

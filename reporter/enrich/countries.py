@@ -159,8 +159,15 @@ def countries_in(affiliation: str) -> tuple[str, ...]:
 def add_countries(records: pd.DataFrame, home_country: str) -> pd.DataFrame:
     """Return new records with countries, partner_countries and is_international."""
     out = records.copy()
+    found: dict[object, tuple[str, ...]] = {}  # many publications share an affiliation: read each once
+
+    def in_affiliation(affiliation: object) -> tuple[str, ...]:
+        if affiliation not in found:
+            found[affiliation] = countries_in(affiliation)
+        return found[affiliation]
+
     countries = records["affiliations"].map(
-        lambda affs: tuple(sorted({c for aff in affs or () for c in countries_in(aff)}))
+        lambda affs: tuple(sorted({c for aff in affs or () for c in in_affiliation(aff)}))
     )
     out["countries"] = countries
     out["partner_countries"] = countries.map(lambda cs: tuple(c for c in cs if c != home_country))

@@ -93,12 +93,21 @@ def add_languages(
     exports all carry one, or a rebuild of the same list, never loads lingua's models.
     """
     out = records.copy()
-    codes = records["language"].map(source_language_code)
+    # An export names a few languages many times over; each is looked up in pycountry once.
+    looked_up: dict[object, str] = {}
+
+    def code_of(value: object) -> str:
+        if value not in looked_up:
+            looked_up[value] = source_language_code(value)
+        return looked_up[value]
+
+    codes = records["language"].map(code_of)
     results: list[tuple[str, bool]] = [(code, code == "en") for code in codes]
     undetermined: set[int] = set()
     todo = [i for i, code in enumerate(codes) if not code]
     if todo:
-        texts = [_text(records.iloc[i]) for i in todo]
+        titles, abstracts = records["title"].tolist(), records["abstract"].tolist()
+        texts = [_text(titles[i], abstracts[i]) for i in todo]
         with stage("language"):
             all_confidences = _confidences(texts, detector_factory, memo)
         for i, text, confidences in zip(todo, texts, all_confidences):
@@ -131,6 +140,6 @@ def _confidences(texts: list[str], detector_factory, memo: LanguageMemo | None) 
     return [known[t] for t in texts]
 
 
-def _text(row: pd.Series) -> str:
-    parts = [str(row["title"] or ""), str(row["abstract"] or "")]
+def _text(title: object, abstract: object) -> str:
+    parts = [str(title or ""), str(abstract or "")]
     return " ".join(p for p in parts if p.strip())[:MAX_CHARS]

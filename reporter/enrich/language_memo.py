@@ -10,13 +10,12 @@ values, so a change to those rules needs no new detection.
 
 from __future__ import annotations
 
-import hashlib
 import json
 from importlib.metadata import PackageNotFoundError, version
 from pathlib import Path
 from typing import Iterable, Mapping
 
-from reporter.memo_db import connect
+from reporter.memo_file import connect, text_hash
 
 _SCHEMA = """
 CREATE TABLE IF NOT EXISTS languages (
@@ -38,10 +37,6 @@ def detector_key(language_codes: Iterable[str], max_chars: int) -> str:
     return f"lingua-{lingua_version}:high-accuracy:{','.join(sorted(language_codes))}:{max_chars}"
 
 
-def _hash(text: str) -> bytes:
-    return hashlib.blake2b(text.encode("utf-8"), digest_size=16).digest()
-
-
 class LanguageMemo:
     """Confidences by text for one detector. Use as a context manager or call close()."""
 
@@ -52,7 +47,7 @@ class LanguageMemo:
 
     def get_many(self, texts: Iterable[str]) -> dict[str, dict[str, float]]:
         """Stored confidences (language code -> value) for the texts seen before."""
-        by_hash = {_hash(t): t for t in dict.fromkeys(texts)}
+        by_hash = {text_hash(t): t for t in dict.fromkeys(texts)}
         hashes = list(by_hash)
         found: dict[str, dict[str, float]] = {}
         for start in range(0, len(hashes), _CHUNK):
@@ -65,7 +60,7 @@ class LanguageMemo:
 
     def put_many(self, results: Mapping[str, Mapping[str, float]]) -> None:
         # JSON keeps a float's shortest repr, so a stored value reads back as the same number.
-        rows = [(self.detector, _hash(t), json.dumps(dict(c), sort_keys=True)) for t, c in results.items()]
+        rows = [(self.detector, text_hash(t), json.dumps(dict(c), sort_keys=True)) for t, c in results.items()]
         with self._db:
             self._db.executemany(
                 "INSERT OR REPLACE INTO languages (detector, text_hash, confidences) VALUES (?, ?, ?)", rows

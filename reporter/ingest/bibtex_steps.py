@@ -7,7 +7,8 @@
 - `SplitNamesLeniently`: bibtexparser's BibTeX name splitting without its strict mode, so one
   malformed name (too many commas, a stray brace) does not fail the whole entry.
 - `DecodeLatex`: LatexDecodingMiddleware that also decodes a list of split names; the library
-  (2.1) decodes a single NameParts value but passes a list of them through undecoded.
+  (2.1) decodes a single NameParts value but passes a list of them through undecoded. Values
+  decoded by an earlier build are read back when a memo is active (latex_memo.py).
 """
 
 from __future__ import annotations
@@ -20,6 +21,8 @@ from bibtexparser.middlewares import LatexDecodingMiddleware, LibraryMiddleware,
 from bibtexparser.middlewares.middleware import BlockMiddleware
 from bibtexparser.middlewares.names import NameParts, parse_single_name_into_parts
 from bibtexparser.model import Block, Entry, MiddlewareErrorBlock
+
+from reporter.ingest.latex_memo import active_memo
 
 _BARE_PERCENT = re.compile(r"(?<!\\)%")
 # A value with none of these decodes to itself (tests/unit/ingest/test_hostile_inputs.py checks
@@ -107,7 +110,11 @@ class DecodeLatex(LatexDecodingMiddleware):
     def _transform_python_value_string(self, python_string: str) -> tuple[str, str]:
         if not _LATEX_MARKUP.search(python_string):
             return python_string, ""
-        return super()._transform_python_value_string(python_string)
+        memo = active_memo()
+        if memo is None:
+            return super()._transform_python_value_string(python_string)
+        # A rebuild finds what the library decoded before (latex_memo.py).
+        return memo.decoded(python_string, super()._transform_python_value_string)
 
     def transform_entry(self, entry: Entry, library: Library) -> Block:
         errors: list[str] = []

@@ -102,7 +102,12 @@ def _looks_binary(text: str) -> bool:
         return False
     # NUL counts like any control character: one stray NUL in a large text export must not
     # discard the whole file, while UTF-16 read as UTF-8 (every other character NUL) still does.
-    controls = sum(1 for ch in text if unicodedata.category(ch) == "Cc" and ch not in "\t\n\r\f")
+    # Control characters are not printable, so a printable text (its line breaks and tabs aside)
+    # has none and skips the count by character.
+    if text.replace("\n", "").replace("\t", "").replace("\r", "").replace("\f", "").isprintable():
+        controls = 0
+    else:
+        controls = sum(1 for ch in text if unicodedata.category(ch) == "Cc" and ch not in "\t\n\r\f")
     replaced = text.count("\ufffd")
     return (controls + replaced) / len(text) > _MAX_CONTROL_SHARE
 

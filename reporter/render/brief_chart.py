@@ -4,10 +4,9 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Sequence
 
-import altair as alt
 import pandas as pd
 
-from reporter.render.charts import to_svg
+from reporter.render.charts import remembered, to_svg
 from reporter.render.context import Chart
 from reporter.render.filters import fmt_share
 from reporter.render.themes import Theme
@@ -18,12 +17,15 @@ if TYPE_CHECKING:  # brief_context imports this module
 INSTITUTION = "institution"
 
 
+@remembered
 def draw_brief_profile(rows: Sequence[BriefGoalRow], department: str, theme: Theme) -> Chart:
     """Columns of the department's shares per goal with interval rules; a tick per goal for the institution.
 
     Goals run along the bottom by number (the table beside it names them), so the chart stays small
     enough to share the first page with the key figures.
     """
+    import altair as alt
+
     order = [r.goal for r in rows]
     own = pd.DataFrame([{"goal": r.goal, "who": department, "share": r.department.share,
                          "low": r.department.share_low, "high": r.department.share_high} for r in rows])

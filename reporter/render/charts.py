@@ -6,11 +6,10 @@ computed; the few divisions here split a bar into its explicit and content-only 
 
 from __future__ import annotations
 
-from typing import Any, Sequence
-
+import functools
 import re
+from typing import TYPE_CHECKING, Any, Callable, Sequence
 
-import altair as alt
 import pandas as pd
 from markupsafe import Markup
 
@@ -18,6 +17,9 @@ from reporter.render.chart_memo import active_memo
 from reporter.render.context import Chart, GoalRow, GroupRow
 from reporter.render.filters import fmt_share
 from reporter.render.themes import Theme
+
+if TYPE_CHECKING:
+    import altair as alt
 
 WIDTH = 560  # px; fits the A4 text block (170 mm) with axis labels beside it
 _FORBIDDEN_SVG = ("<script", "<foreignobject", "javascript:", "href=\"http", "href='http")
@@ -55,6 +57,27 @@ def _user_space_gradients(svg: str) -> str:
                 f'x2="{float(x2) * w:g}" y1="{float(y1) * h:g}" y2="{float(y2) * h:g}">')
 
     return _GRADIENT.sub(fix, svg)
+
+
+def remembered(draw: Callable[..., Chart]) -> Callable[..., Chart]:
+    """Read back a chart drawn before with the same arguments (chart_memo.py), without building its spec.
+
+    Altair is imported inside each chart function, so a rebuild that finds every chart never loads it.
+    """
+    @functools.wraps(draw)
+    def drawn(*args, **kwargs) -> Chart:
+        memo = active_memo()
+        if memo is None:
+            return draw(*args, **kwargs)
+        key = memo.call_key(f"{draw.__module__}.{draw.__qualname__}", args, kwargs)
+        found = memo.drawing(key)
+        if found is not None:
+            return Chart(svg=Markup(found[0]), alt=found[1])
+        chart = draw(*args, **kwargs)
+        memo.keep_drawing(key, str(chart.svg), chart.alt)
+        return chart
+
+    return drawn
 
 
 def to_svg(chart: alt.TopLevelMixin, theme: Theme, alt_text: str, name: str) -> Chart:
@@ -105,8 +128,11 @@ def _goal_label(code: str, title: str) -> str:
     return f"{code}  {title}"
 
 
+@remembered
 def draw_goal_profile(rows: Sequence[GoalRow], theme: Theme) -> Chart:
     """Horizontal bars per goal: explicit-mention part + content-only part, with the interval as a rule."""
+    import altair as alt
+
     order = [_goal_label(r.goal, r.title) for r in rows]
     parts, bounds = [], []
     for r in rows:
@@ -140,8 +166,11 @@ def draw_goal_profile(rows: Sequence[GoalRow], theme: Theme) -> Chart:
     return to_svg(chart, theme, alt_text, "goal-profile")
 
 
+@remembered
 def draw_change(by_year: pd.DataFrame, goals: Sequence[tuple[str, str]], theme: Theme) -> Chart:
     """Small multiples: one panel per goal, share per year as a line inside its interval band."""
+    import altair as alt
+
     labels = {code: _goal_label(code, title) for code, title in goals}
     data = by_year.loc[by_year["goal"].isin(labels)].assign(
         label=lambda f: f["goal"].map(labels),
@@ -185,11 +214,14 @@ def _cells_frame(rows: Sequence[GroupRow], value: str) -> pd.DataFrame:
     return pd.DataFrame(records, columns=["group", "goal", "value", "too_small"])
 
 
+@remembered
 def draw_group_heatmap(
     rows: Sequence[GroupRow], goals: Sequence[tuple[str, str]], theme: Theme, *, what: str, name: str,
     min_group_size: int, value: str = "share",
 ) -> Chart:
     """Group x goal heat map; cells of too-small groups are grey and labelled "n<k" instead of coloured."""
+    import altair as alt
+
     data = _cells_frame(rows, value)
     goal_order = [code for code, _ in goals]
     group_order = [row.label for row in rows]
@@ -220,8 +252,11 @@ def draw_group_heatmap(
     return to_svg(chart, theme, alt_text, name)
 
 
+@remembered
 def draw_collaboration(rows: Sequence[GroupRow], goals: Sequence[tuple[str, str]], theme: Theme) -> Chart:
     """Goal shares side by side for international and domestic publications, with interval rules."""
+    import altair as alt
+
     records: list[dict[str, Any]] = []
     for row in rows:
         for cell in row.cells:
@@ -245,8 +280,11 @@ def draw_collaboration(rows: Sequence[GroupRow], goals: Sequence[tuple[str, str]
     return to_svg(chart, theme, alt_text, "collaboration")
 
 
+@remembered
 def draw_cooccurrence(pairs: pd.DataFrame, goals: Sequence[tuple[str, str]], theme: Theme) -> Chart:
     """Symmetric goal x goal heat map of publications aligned with both goals."""
+    import altair as alt
+
     both = pd.concat([pairs, pairs.rename(columns={"goal_a": "goal_b", "goal_b": "goal_a"})], ignore_index=True)
     goal_order = [code for code, _ in goals]
     pal = theme.palette

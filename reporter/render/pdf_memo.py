@@ -19,15 +19,15 @@ import json
 import time
 from pathlib import Path
 
-from reporter.memo_db import connect
+from reporter.memo_file import connect
 
 KEEP_LAYOUTS = 400  # a few hundred bytes each
 KEEP_PARTS = 24  # PDFs of up to a few hundred KB, at most one per build: the last 24 builds' layouts
 
-_SCHEMA = (
-    "CREATE TABLE IF NOT EXISTS pdf_layouts (key BLOB PRIMARY KEY, facts TEXT NOT NULL, used_at REAL NOT NULL)",
-    "CREATE TABLE IF NOT EXISTS pdf_parts (key BLOB PRIMARY KEY, pdf BLOB NOT NULL, used_at REAL NOT NULL)",
-)
+_SCHEMA = """
+CREATE TABLE IF NOT EXISTS pdf_layouts (key BLOB PRIMARY KEY, facts TEXT NOT NULL, used_at REAL NOT NULL);
+CREATE TABLE IF NOT EXISTS pdf_parts (key BLOB PRIMARY KEY, pdf BLOB NOT NULL, used_at REAL NOT NULL);
+"""
 
 
 class PdfMemo:
@@ -35,7 +35,7 @@ class PdfMemo:
 
     def __init__(self, path: Path):
         self.path = Path(path)
-        self._db = connect(self.path, *_SCHEMA)
+        self._db = connect(self.path, _SCHEMA)
 
     def facts(self, key: bytes) -> dict | None:
         row = self._get("pdf_layouts", "facts", key)

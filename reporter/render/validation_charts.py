@@ -8,21 +8,23 @@ from __future__ import annotations
 
 from typing import Sequence
 
-import altair as alt
 import pandas as pd
 
-from reporter.render.charts import to_svg
+from reporter.render.charts import remembered, to_svg
 from reporter.render.context import Chart
 from reporter.render.themes import Theme
 
 NO_GOAL = "none"  # the matrix's "no goal" row and column (analyse.validation.NONE); short enough for a column
 
 
+@remembered
 def draw_goal_matrix(cells: pd.DataFrame, goal_order: Sequence[str], theme: Theme, alt_text: str) -> Chart:
     """Heat map: rows = goal people gave, columns = goal the machine gave, counts written in the cells.
 
     `cells` has labelled, predicted, n with goal codes or NO_GOAL; `goal_order` lists them all.
     """
+    import altair as alt
+
     pal = theme.palette
     order = list(goal_order)
     x = alt.X("predicted:N", sort=order, title="goal given by the machine", axis=alt.Axis(labelAngle=0, orient="top"))
@@ -49,6 +51,7 @@ def draw_goal_matrix(cells: pd.DataFrame, goal_order: Sequence[str], theme: Them
     return to_svg(chart, theme, alt_text, "validation-matrix")
 
 
+@remembered
 def draw_threshold_curves(
     curve: pd.DataFrame, current: dict[str, float], goals: Sequence[tuple[str, str]], theme: Theme, alt_text: str,
 ) -> Chart:
@@ -56,6 +59,8 @@ def draw_threshold_curves(
 
     `curve` has goal, threshold, precision, recall; a rule marks the threshold used (`current`).
     """
+    import altair as alt
+
     labels = {code: f"{code}  {title}" for code, title in goals}
     long = curve.loc[curve["goal"].isin(labels)].melt(
         id_vars=["goal", "threshold"], value_vars=["precision", "recall"], var_name="measure", value_name="value",

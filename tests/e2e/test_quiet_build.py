@@ -16,7 +16,10 @@ from tests.e2e.small_project import make_small_project
 
 pytestmark = pytest.mark.model
 
-HEAVY = ("torch", "onnxruntime", "transformers", "sentence_transformers")
+# The model's libraries; scipy.stats with the libraries that import it (about a second: the statistics
+# and metrics are computed in reporter/analyse without them); Altair (every chart is found by its arguments).
+HEAVY = ("torch", "onnxruntime", "transformers", "sentence_transformers", "scipy.stats", "sklearn", "statsmodels",
+         "altair")
 # One sentence far beyond the model's 512 word pieces: scoring splits it before encoding, so the
 # tokenizer's "sequence length is longer than the specified maximum" is not the user's concern.
 LONG_RECORD = (

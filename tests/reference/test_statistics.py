@@ -98,3 +98,42 @@ def test_bootstrap_of_several_series_matches_scipy():
     ).confidence_interval
     np.testing.assert_allclose(low, theirs.low, atol=1e-12)
     np.testing.assert_allclose(high, theirs.high, atol=1e-12)
+
+
+def test_difference_p_value_is_statsmodels_score_test_to_the_bit():
+    """Source: statsmodels test_proportions_2indep(method="score", correction=False), whose operations
+    difference_p_value repeats: equal floats, not merely close ones, so no figure moves."""
+    from statsmodels.stats.proportion import test_proportions_2indep
+
+    rng = np.random.default_rng(16)
+    for _ in range(300):
+        n1, n2 = rng.integers(1, 3000, size=2).astype(float) + rng.random(2) * (rng.random() < 0.3)
+        x1, x2 = float(rng.integers(0, int(n1) + 1)), float(rng.integers(0, int(n2) + 1))
+        if (x1 + x2) in (0.0, n1 + n2):
+            continue
+        with np.errstate(divide="ignore", invalid="ignore"):  # statsmodels' odds ratio of a 0 or 1 share
+            expected = test_proportions_2indep(x1, n1, x2, n2, value=0, method="score", compare="diff",
+                                               alternative="two-sided", correction=False).pvalue
+        assert difference_p_value(x1, n1, x2, n2) == float(expected), (x1, n1, x2, n2)
+
+
+def test_bh_adjust_is_scipy_false_discovery_control_to_the_bit():
+    """Source: scipy.stats.false_discovery_control(method="bh"), whose operations bh_adjust repeats
+    (ties and p-values of 1 included)."""
+    from scipy.stats import false_discovery_control
+
+    rng = np.random.default_rng(17)
+    for _ in range(300):
+        p = np.round(rng.random(int(rng.integers(1, 40))), int(rng.integers(1, 6)))
+        p[rng.random(p.size) < 0.1] = 1.0
+        assert np.array_equal(bh_adjust(p), false_discovery_control(p, method="bh")), p
+
+
+@pytest.mark.parametrize("confidence", [0.5, 0.8, 0.9, 0.95, 0.99, 0.999])
+def test_interval_z_is_scipy_norm_ppf(confidence):
+    """Source: scipy.stats.norm.ppf, the quantile the intervals use (scipy.special.ndtri underneath)."""
+    from scipy.stats import norm
+
+    from reporter.analyse.intervals import _z
+
+    assert _z(confidence) == float(norm.ppf(0.5 + confidence / 2))

@@ -81,3 +81,38 @@ def test_curve_matches_sklearn_at_each_threshold():
             assert rows.loc[code, "precision"] == pytest.approx(
                 precision_score(truth[:, g], p, zero_division=np.nan), nan_ok=True)
             assert rows.loc[code, "recall"] == pytest.approx(recall_score(truth[:, g], p, zero_division=np.nan))
+
+
+@pytest.mark.parametrize("seed", range(6))
+def test_metrics_are_sklearns_to_the_bit(seed):
+    """Source: scikit-learn precision_recall_fscore_support (None, micro, macro; zero_division=NaN),
+    multilabel_confusion_matrix, cohen_kappa_score, accuracy_score and hamming_loss, whose operations
+    reporter/analyse/metrics.py repeats: equal floats, not merely close ones, so no figure moves."""
+    import warnings
+
+    from sklearn.exceptions import UndefinedMetricWarning
+    from sklearn.metrics import multilabel_confusion_matrix, precision_recall_fscore_support
+
+    from reporter.analyse import metrics
+
+    rng = np.random.default_rng(seed)
+    for _ in range(40):
+        n, k = int(rng.integers(1, 60)), int(rng.integers(2, 18))
+        truth = rng.random((n, k)) < rng.random(k) * rng.choice([0, 0.1, 0.5, 1])
+        predicted = truth.copy() if rng.random() < 0.2 else rng.random((n, k)) < rng.random(k)
+        ours_counts = metrics.confusion_counts(truth, predicted)
+        theirs_counts = multilabel_confusion_matrix(truth, predicted)
+        assert ours_counts.dtype == theirs_counts.dtype and np.array_equal(ours_counts, theirs_counts)
+        for average in (None, "micro", "macro"):
+            ours = metrics.precision_recall_f1(truth, predicted, average)
+            theirs = precision_recall_fscore_support(truth, predicted, average=average, zero_division=np.nan)[:3]
+            for a, b in zip(ours, theirs):
+                assert np.array_equal(a, b, equal_nan=True), (average, a, b)
+        assert metrics.exact_match_share(truth, predicted) == accuracy_score(truth, predicted)
+        assert metrics.hamming_loss(truth, predicted) == hamming_loss(truth, predicted)
+        for g in range(k):
+            with warnings.catch_warnings():
+                warnings.simplefilter("ignore", UndefinedMetricWarning)
+                expected = cohen_kappa_score(truth[:, g], predicted[:, g], labels=[False, True],
+                                             replace_undefined_by=np.nan)
+            assert np.array_equal(metrics.cohen_kappa(truth[:, g], predicted[:, g]), expected, equal_nan=True)

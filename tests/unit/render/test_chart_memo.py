@@ -66,3 +66,35 @@ def test_only_the_most_recently_used_charts_are_kept(tmp_path, monkeypatch):
 def test_without_a_cache_file_nothing_is_kept(drawn):
     assert chart_memo.active_memo() is None
     assert _html(None) == drawn
+
+
+def test_a_rebuild_finds_each_chart_by_its_arguments_without_building_a_spec(tmp_path, drawn, monkeypatch):
+    cache = tmp_path / "cache.sqlite"
+    assert _html(cache) == drawn
+    import altair
+
+    def refuse(*args, **kwargs):
+        raise AssertionError("an Altair chart was built although the call was drawn before")
+
+    for name in ("Chart", "layer"):
+        monkeypatch.setattr(altair, name, refuse)
+    assert _html(cache) == drawn
+
+
+def test_a_call_key_covers_the_function_its_arguments_and_the_drawing_code(tmp_path, monkeypatch):
+    memo = ChartMemo(tmp_path / "cache.sqlite")
+    try:
+        key = memo.call_key("charts.draw_a", (1, [0.5]), {"name": "x"})
+        assert key == memo.call_key("charts.draw_a", (1, [0.5]), {"name": "x"})
+        assert key != memo.call_key("charts.draw_b", (1, [0.5]), {"name": "x"})
+        assert key != memo.call_key("charts.draw_a", (1, [0.25]), {"name": "x"})
+        assert key != memo.call_key("charts.draw_a", (1, [0.5]), {"name": "y"})
+    finally:
+        memo.close()
+    # Another release of a library that shapes the spec (or other render code) is other drawing code.
+    monkeypatch.setattr(chart_memo, "_SPEC_LIBRARIES", ("altair", "pandas"))
+    other = ChartMemo(tmp_path / "cache.sqlite")
+    try:
+        assert other.call_key("charts.draw_a", (1, [0.5]), {"name": "x"}) != key
+    finally:
+        other.close()
